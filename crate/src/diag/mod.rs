@@ -1,0 +1,1 @@
+//! Convergence diagnostics (in progress).

@@ -1,0 +1,171 @@
+//! Errors as data: a message, the byte range it is about, and what was expected there.
+//!
+//! The command line renders a [`Diagnostic`] in the GNU `FILE:LINE:COL: error: message` form
+//! (GNU Coding Standards, "Formatting Error Messages") followed by the offending line and a caret;
+//! the page underlines the same range. Nothing here prints.
+
+use serde::Serialize;
+use std::fmt::Write as _;
+
+/// A half-open byte range `start..end` into the model text.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize)]
+pub struct Span {
+    pub start: usize,
+    pub end: usize,
+}
+
+impl Span {
+    pub fn new(start: usize, end: usize) -> Self {
+        Span { start, end }
+    }
+
+    /// The smallest span covering both.
+    pub fn to(self, other: Span) -> Span {
+        Span::new(self.start.min(other.start), self.end.max(other.end))
+    }
+}
+
+/// A 1-based line and column; columns count characters, not bytes.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+pub struct Position {
+    pub line: usize,
+    pub column: usize,
+}
+
+impl Position {
+    /// The position of byte `offset` in `source` (clamped to the text, and to a character boundary).
+    pub fn of(source: &str, offset: usize) -> Position {
+        let mut offset = offset.min(source.len());
+        while !source.is_char_boundary(offset) {
+            offset -= 1;
+        }
+        let before = &source[..offset];
+        let line_start = before.rfind('\n').map_or(0, |i| i + 1);
+        Position { line: before.matches('\n').count() + 1, column: before[line_start..].chars().count() + 1 }
+    }
+}
+
+/// One problem with a model: what went wrong, where, and what would have been right.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Diagnostic {
+    pub message: String,
+    pub span: Span,
+    /// What the reader of the model should have written here, e.g. "an expression".
+    pub expected: Option<String>,
+    /// A hint such as "did you mean `sigma`?".
+    pub help: Option<String>,
+}
+
+impl Diagnostic {
+    pub fn new(message: impl Into<String>, span: Span) -> Self {
+        Diagnostic { message: message.into(), span, expected: None, help: None }
+    }
+
+    pub fn expected(mut self, what: impl Into<String>) -> Self {
+        self.expected = Some(what.into());
+        self
+    }
+
+    pub fn help(mut self, hint: impl Into<String>) -> Self {
+        self.help = Some(hint.into());
+        self
+    }
+
+    /// Where the problem starts.
+    pub fn position(&self, source: &str) -> Position {
+        Position::of(source, self.span.start)
+    }
+
+    /// `FILE:LINE:COL: error: message`, the offending line, a caret under the span, then the
+    /// expectation and the hint, each on a line of its own.
+    pub fn render(&self, file: &str, source: &str) -> String {
+        let at = self.position(source);
+        let mut out = format!("{file}:{}:{}: error: {}\n", at.line, at.column, self.message);
+        let line_text = source.lines().nth(at.line - 1).unwrap_or("");
+        let gutter = at.line.to_string();
+        let pad = " ".repeat(gutter.len());
+        // Width of the caret: the span's characters on this line, at least one.
+        let span_text = source.get(self.span.start..self.span.end.min(source.len())).unwrap_or("");
+        let width = span_text.lines().next().map_or(0, |s| s.chars().count()).max(1);
+        let lead: String = line_text.chars().take(at.column - 1).map(|c| if c == '\t' { '\t' } else { ' ' }).collect();
+        let _ = writeln!(out, "{pad} |");
+        let _ = writeln!(out, "{gutter} | {line_text}");
+        let _ = writeln!(out, "{pad} | {lead}{}", "^".repeat(width));
+        if let Some(expected) = &self.expected {
+            let _ = writeln!(out, "{pad} = expected {expected}");
+        }
+        if let Some(help) = &self.help {
+            let _ = writeln!(out, "{pad} = help: {help}");
+        }
+        out
+    }
+}
+
+/// The closest of `candidates` to `name` by edit distance, if close enough to be a likely typo.
+pub fn did_you_mean<'a>(name: &str, candidates: impl IntoIterator<Item = &'a str>) -> Option<&'a str> {
+    let limit = (name.chars().count() / 3).max(1);
+    candidates
+        .into_iter()
+        .map(|c| (edit_distance(name, c), c))
+        .filter(|&(d, _)| d <= limit)
+        .min_by_key(|&(d, _)| d)
+        .map(|(_, c)| c)
+}
+
+/// Edit distance over characters in which swapping two neighbours counts as one edit
+/// (optimal string alignment), so `sigam` is one edit from `sigma`.
+fn edit_distance(a: &str, b: &str) -> usize {
+    let (a, b): (Vec<char>, Vec<char>) = (a.chars().collect(), b.chars().collect());
+    let mut d = vec![vec![0usize; b.len() + 1]; a.len() + 1];
+    for (i, row) in d.iter_mut().enumerate() {
+        row[0] = i;
+    }
+    for j in 0..=b.len() {
+        d[0][j] = j;
+    }
+    for i in 1..=a.len() {
+        for j in 1..=b.len() {
+            let cost = usize::from(a[i - 1] != b[j - 1]);
+            d[i][j] = (d[i - 1][j] + 1).min(d[i][j - 1] + 1).min(d[i - 1][j - 1] + cost);
+            if i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] {
+                d[i][j] = d[i][j].min(d[i - 2][j - 2] + 1);
+            }
+        }
+    }
+    d[a.len()][b.len()]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn positions_count_lines_and_characters() {
+        let src = "a = 1\nbé = 2\n";
+        assert_eq!(Position::of(src, 0), Position { line: 1, column: 1 });
+        assert_eq!(Position::of(src, 6), Position { line: 2, column: 1 });
+        // 'é' is two bytes but one column.
+        assert_eq!(Position::of(src, 9), Position { line: 2, column: 3 });
+        assert_eq!(Position::of(src, 999), Position { line: 3, column: 1 });
+    }
+
+    #[test]
+    fn render_points_at_the_span() {
+        let src = "mu : real\nsigma : positve\n";
+        let d = Diagnostic::new("unknown support `positve`", Span::new(18, 25))
+            .expected("a support such as `real` or `positive`")
+            .help("did you mean `positive`?");
+        assert_eq!(
+            d.render("m.mw", src),
+            "m.mw:2:9: error: unknown support `positve`\n  |\n2 | sigma : positve\n  |         ^^^^^^^\n  = expected a support such as `real` or `positive`\n  = help: did you mean `positive`?\n"
+        );
+    }
+
+    #[test]
+    fn suggestions_are_close_names_only() {
+        let names = ["sigma", "mu", "theta"];
+        assert_eq!(did_you_mean("sigam", names), Some("sigma"));
+        assert_eq!(did_you_mean("tehta", names), Some("theta"));
+        assert_eq!(did_you_mean("zzz", names), None);
+    }
+}

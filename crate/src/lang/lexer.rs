@@ -1,0 +1,165 @@
+//! Turns model text into tokens. The lexer cannot fail: a character it does not know becomes an
+//! [`TokenKind::Unknown`] token and the parser reports it with its position.
+
+/// What a token is; its text is `source[start..start + len]`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum TokenKind {
+    Ident,
+    Number,
+    Plus,
+    Minus,
+    Star,
+    Slash,
+    Caret,
+    LParen,
+    RParen,
+    LBracket,
+    RBracket,
+    Comma,
+    Semicolon,
+    Colon,
+    Equals,
+    /// The end of a statement: a line break outside brackets and not after an operator.
+    Newline,
+    Unknown,
+    Eof,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Token {
+    pub kind: TokenKind,
+    pub start: usize,
+    pub len: usize,
+}
+
+impl Token {
+    pub fn end(&self) -> usize {
+        self.start + self.len
+    }
+}
+
+/// All significant tokens of `source`, ending with [`TokenKind::Eof`].
+///
+/// Comments and spaces are dropped. A line break becomes a [`TokenKind::Newline`] only where it can
+/// end a statement: outside brackets, and not right after something that needs a right-hand side
+/// (an operator, `=`, `:`, `,`, `;`). That is the whole of the line-continuation rule.
+pub fn tokenize(source: &str) -> Vec<Token> {
+    let mut tokens = Vec::new();
+    let mut depth = 0usize;
+    let mut chars = source.char_indices().peekable();
+    while let Some((start, c)) = chars.next() {
+        let single = |kind| Token { kind, start, len: c.len_utf8() };
+        let token = match c {
+            '\n' => {
+                let continues = tokens.last().is_none_or(|t: &Token| {
+                    use TokenKind::*;
+                    matches!(t.kind, Plus | Minus | Star | Slash | Caret | Comma | Semicolon | Colon | Equals | Newline)
+                });
+                if depth > 0 || continues {
+                    continue;
+                }
+                single(TokenKind::Newline)
+            }
+            c if c.is_whitespace() => continue,
+            '#' => {
+                while chars.next_if(|&(_, c)| c != '\n').is_some() {}
+                continue;
+            }
+            '+' => single(TokenKind::Plus),
+            '-' => single(TokenKind::Minus),
+            '*' => single(TokenKind::Star),
+            '/' => single(TokenKind::Slash),
+            '^' => single(TokenKind::Caret),
+            ',' => single(TokenKind::Comma),
+            ';' => single(TokenKind::Semicolon),
+            ':' => single(TokenKind::Colon),
+            '=' => single(TokenKind::Equals),
+            '(' | '[' => {
+                depth += 1;
+                single(if c == '(' { TokenKind::LParen } else { TokenKind::LBracket })
+            }
+            ')' | ']' => {
+                depth = depth.saturating_sub(1);
+                single(if c == ')' { TokenKind::RParen } else { TokenKind::RBracket })
+            }
+            c if c.is_ascii_alphabetic() || c == '_' => {
+                let mut end = start + 1;
+                while let Some((i, _)) = chars.next_if(|&(_, c)| c.is_ascii_alphanumeric() || c == '_') {
+                    end = i + 1;
+                }
+                Token { kind: TokenKind::Ident, start, len: end - start }
+            }
+            c if c.is_ascii_digit() || (c == '.' && chars.peek().is_some_and(|&(_, d)| d.is_ascii_digit())) => {
+                Token { kind: TokenKind::Number, start, len: number_len(&source[start..]) }
+            }
+            _ => single(TokenKind::Unknown),
+        };
+        // Numbers may span several chars: skip what the token consumed beyond this char.
+        while chars.next_if(|&(i, _)| i < token.end()).is_some() {}
+        tokens.push(token);
+    }
+    tokens.push(Token { kind: TokenKind::Eof, start: source.len(), len: 0 });
+    tokens
+}
+
+/// Length of the number at the start of `text`: digits, an optional fraction, an optional exponent.
+fn number_len(text: &str) -> usize {
+    let bytes = text.as_bytes();
+    let digits = |mut i: usize| {
+        while i < bytes.len() && bytes[i].is_ascii_digit() {
+            i += 1;
+        }
+        i
+    };
+    let mut end = digits(0);
+    if end < bytes.len() && bytes[end] == b'.' {
+        end = digits(end + 1);
+    }
+    if end < bytes.len() && matches!(bytes[end], b'e' | b'E') {
+        let sign = usize::from(matches!(bytes.get(end + 1), Some(b'+' | b'-')));
+        let exp_end = digits(end + 1 + sign);
+        if exp_end > end + 1 + sign {
+            end = exp_end;
+        }
+    }
+    end
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use TokenKind::*;
+
+    fn kinds(src: &str) -> Vec<TokenKind> {
+        tokenize(src).iter().map(|t| t.kind).collect()
+    }
+
+    fn texts(src: &str) -> Vec<&str> {
+        tokenize(src).iter().map(|t| &src[t.start..t.end()]).collect()
+    }
+
+    #[test]
+    fn numbers_take_fractions_and_exponents() {
+        assert_eq!(texts("1 2.5 .5 1e-3 4E+2 7e x"), ["1", "2.5", ".5", "1e-3", "4E+2", "7", "e", "x", ""]);
+    }
+
+    #[test]
+    fn comments_and_spaces_vanish() {
+        assert_eq!(kinds("a = 1 # note\nb"), [Ident, Equals, Number, Newline, Ident, Eof]);
+    }
+
+    #[test]
+    fn line_breaks_inside_brackets_or_after_operators_continue_the_statement() {
+        assert_eq!(
+            kinds("x = [1,\n 2]\ny"),
+            [Ident, Equals, LBracket, Number, Comma, Number, RBracket, Newline, Ident, Eof]
+        );
+        assert_eq!(kinds("d = a *\n b\n\n\nc"), [Ident, Equals, Ident, Star, Ident, Newline, Ident, Eof]);
+    }
+
+    #[test]
+    fn unknown_characters_become_tokens() {
+        assert_eq!(kinds("a $ é"), [Ident, Unknown, Unknown, Eof]);
+        assert_eq!(tokenize("é")[0].len, 2);
+    }
+}

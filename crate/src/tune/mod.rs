@@ -1,0 +1,1 @@
+//! Tuning by Bayesian optimisation (in progress).
