@@ -9,6 +9,7 @@ pub mod diag;
 pub mod dist;
 pub mod lang;
 pub mod model;
+pub mod rng;
 pub mod tape;
 pub mod tune;
 
