@@ -47,6 +47,21 @@ pub enum Variate {
     BetweenParams,
 }
 
+impl Variate {
+    /// Whether `x` is a possible value (for `BetweenParams`, any finite number).
+    pub fn contains(self, x: f64) -> bool {
+        x.is_finite()
+            && match self {
+                Variate::Real | Variate::BetweenParams => true,
+                Variate::NonNegative => x >= 0.0,
+                Variate::Positive => x > 0.0,
+                Variate::Unit => (0.0..=1.0).contains(&x),
+                Variate::Count => x >= 0.0 && x.fract() == 0.0,
+                Variate::Binary => x == 0.0 || x == 1.0,
+            }
+    }
+}
+
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Family {
     Normal,

@@ -42,7 +42,8 @@ impl Token {
 ///
 /// Comments and spaces are dropped. A line break becomes a [`TokenKind::Newline`] only where it can
 /// end a statement: outside brackets, and not right after something that needs a right-hand side
-/// (an operator, `=`, `:`, `,`, `;`). That is the whole of the line-continuation rule.
+/// (an operator, `=`, `:`, `,`, `;`), and not right before a line that starts with an operator
+/// (`+ - * / ^`), which no statement can. That is the whole of the line-continuation rule.
 pub fn tokenize(source: &str) -> Vec<Token> {
     let mut tokens = Vec::new();
     let mut depth = 0usize;
@@ -99,7 +100,13 @@ pub fn tokenize(source: &str) -> Vec<Token> {
         tokens.push(token);
     }
     tokens.push(Token { kind: TokenKind::Eof, start: source.len(), len: 0 });
-    tokens
+    let operator = |t: &Token| {
+        use TokenKind::*;
+        matches!(t.kind, Plus | Minus | Star | Slash | Caret)
+    };
+    let continued: Vec<bool> =
+        tokens.windows(2).map(|w| w[0].kind == TokenKind::Newline && operator(&w[1])).chain([false]).collect();
+    tokens.into_iter().zip(continued).filter(|(_, skip)| !skip).map(|(t, _)| t).collect()
 }
 
 /// Length of the number at the start of `text`: digits, an optional fraction, an optional exponent.
@@ -155,6 +162,7 @@ mod tests {
             [Ident, Equals, LBracket, Number, Comma, Number, RBracket, Newline, Ident, Eof]
         );
         assert_eq!(kinds("d = a *\n b\n\n\nc"), [Ident, Equals, Ident, Star, Ident, Newline, Ident, Eof]);
+        assert_eq!(kinds("d = a\n  # note\n  * b\nc"), [Ident, Equals, Ident, Star, Ident, Newline, Ident, Eof]);
     }
 
     #[test]

@@ -81,8 +81,8 @@ impl<'s> Parser<'s> {
     fn unexpected(&self, what: &str) -> Diagnostic {
         let token = self.peek();
         let found = match token.kind {
-            TokenKind::Eof => "the end of the text".to_string(),
-            TokenKind::Newline => "the end of the line".to_string(),
+            TokenKind::Eof => "end of text".to_string(),
+            TokenKind::Newline => "end of line".to_string(),
             TokenKind::Unknown => format!("the character `{}`, which is not part of the language", self.text(token)),
             _ => format!("`{}`", self.text(token)),
         };

@@ -1,7 +1,156 @@
-//! Gives a parsed model its meaning: names resolved, shapes and supports checked.
+//! Gives a parsed model its meaning: names resolved, shapes and supports checked, the density
+//! rewritten as a sum of log terms. The result, a [`Model`], is what [`crate::tape`] compiles.
 
-use crate::lang::{Diagnostic, Span};
+pub mod builtins;
+mod checker;
+pub mod support;
+
+use crate::dist::{Family, MvNormal};
+use crate::lang::Diagnostic;
+use builtins::{BinaryFn, ReduceFn, UnaryFn};
 use serde::Serialize;
+use support::Transform;
+
+/// Largest number of elements in one parameter or one data value.
+pub const MAX_LENGTH: usize = 1 << 20;
+/// Largest total number of unconstrained parameter coordinates.
+pub const MAX_DIMENSION: usize = 10_000;
+
+/// The shape of a value: a number, a list, or a row-major matrix.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Shape {
+    Scalar,
+    Vector(usize),
+    Matrix(usize, usize),
+}
+
+impl Shape {
+    /// Number of elements.
+    pub fn len(self) -> usize {
+        match self {
+            Shape::Scalar => 1,
+            Shape::Vector(n) => n,
+            Shape::Matrix(r, c) => r * c,
+        }
+    }
+
+    /// `[]`, `[n]` or `[rows, columns]`.
+    pub fn dims(self) -> Vec<usize> {
+        match self {
+            Shape::Scalar => vec![],
+            Shape::Vector(n) => vec![n],
+            Shape::Matrix(r, c) => vec![r, c],
+        }
+    }
+
+    /// The shape in words, for messages.
+    pub fn describe(self) -> String {
+        match self {
+            Shape::Scalar => "a single number".into(),
+            Shape::Vector(n) => format!("a list of {n}"),
+            Shape::Matrix(r, c) => format!("a {r}×{c} matrix"),
+        }
+    }
+
+    /// Names of the elements of `name`: `x`, or `x[1]`, `x[2]`, …, or `m[1,1]`, `m[1,2]`, ….
+    pub fn element_names(self, name: &str) -> Vec<String> {
+        match self {
+            Shape::Scalar => vec![name.to_string()],
+            Shape::Vector(n) => (1..=n).map(|i| format!("{name}[{i}]")).collect(),
+            Shape::Matrix(r, c) => {
+                (1..=r).flat_map(|i| (1..=c).map(move |j| format!("{name}[{i},{j}]"))).collect()
+            }
+        }
+    }
+}
+
+/// A declared parameter.
+#[derive(Clone, Debug)]
+pub struct Parameter {
+    pub name: String,
+    /// The support as written, e.g. `between(0, 1)`.
+    pub support: String,
+    pub transform: Transform,
+    pub shape: Shape,
+    /// Where its coordinates start in the unconstrained vector θ.
+    pub offset: usize,
+}
+
+/// A value known before sampling: named data, or a literal inside an expression.
+#[derive(Clone, Debug)]
+pub struct Constant {
+    pub name: Option<String>,
+    pub shape: Shape,
+    pub values: Vec<f64>,
+}
+
+/// A quantity computed from the parameters for every draw.
+#[derive(Clone, Debug)]
+pub struct Derived {
+    pub name: String,
+    pub node: Node,
+}
+
+/// A checked expression: every node knows its shape and whether it depends on parameters.
+#[derive(Clone, Debug)]
+pub struct Node {
+    pub kind: NodeKind,
+    pub shape: Shape,
+    /// True when the value is known before sampling (no parameter below this node).
+    pub constant: bool,
+}
+
+#[derive(Clone, Debug)]
+pub enum NodeKind {
+    Constant(usize),
+    Parameter(usize),
+    Derived(usize),
+    Map(UnaryFn, Box<Node>),
+    Zip(BinaryFn, Box<Node>, Box<Node>),
+    Reduce(ReduceFn, Box<Node>),
+    Dot(Box<Node>, Box<Node>),
+    MatVec(Box<Node>, Box<Node>),
+    /// Elements picked by 0-based flat positions.
+    Gather(Box<Node>, Vec<usize>),
+    /// Scalars (or equal-length rows) laid end to end.
+    Stack(Vec<Node>),
+    /// Σᵢ log f(xᵢ; θᵢ), a scalar.
+    LogDensity { family: Family, x: Box<Node>, params: Vec<Node> },
+    /// log N(x; mean, Σ) with Σ the covariance of `Model::mvnormals[index]`.
+    MvNormal { index: usize, x: Box<Node>, mean: Box<Node> },
+}
+
+/// A model ready to compile.
+#[derive(Clone, Debug)]
+pub struct Model {
+    pub parameters: Vec<Parameter>,
+    pub constants: Vec<Constant>,
+    pub derived: Vec<Derived>,
+    pub mvnormals: Vec<MvNormal>,
+    /// The log of the density, a scalar node.
+    pub log_density: Node,
+    /// Number of unconstrained coordinates.
+    pub dim: usize,
+}
+
+impl Model {
+    /// The summary that `mixwell check` prints and the page lists.
+    pub fn info(&self) -> ModelInfo {
+        ModelInfo {
+            parameters: self
+                .parameters
+                .iter()
+                .map(|p| ParameterInfo { name: p.name.clone(), support: p.support.clone(), size: p.shape.len() })
+                .collect(),
+            data: self
+                .constants
+                .iter()
+                .filter_map(|c| Some(DataInfo { name: c.name.clone()?, shape: c.shape.dims() }))
+                .collect(),
+            derived: self.derived.iter().map(|d| DerivedInfo { name: d.name.clone(), shape: d.node.shape.dims() }).collect(),
+        }
+    }
+}
 
 /// What `mixwell check` reports and the page lists.
 #[derive(Clone, Debug, Serialize)]
@@ -33,8 +182,7 @@ pub struct DerivedInfo {
     pub shape: Vec<usize>,
 }
 
-/// Parse and check a model.
-pub fn check(source: &str) -> Result<ModelInfo, Diagnostic> {
-    crate::lang::parse(source)?;
-    Err(Diagnostic::new("checking is not built yet", Span::new(0, 0)))
+/// Parse and check a model text.
+pub fn check(source: &str) -> Result<Model, Diagnostic> {
+    checker::check(source)
 }

@@ -1,0 +1,191 @@
+//! Flattening a checked model into instructions, folding constants on the way.
+
+use super::{Arg, Op, Tape, exec};
+use crate::dist::MvNormal;
+use crate::model::{Constant, Derived, Model, Node, NodeKind, Shape};
+
+pub(crate) fn compile(model: &Model) -> Tape {
+    let mut c = Compiler::new(&model.constants, &model.derived, model.mvnormals.clone());
+    let mut jacobians = Vec::new();
+    for p in &model.parameters {
+        let len = p.shape.len();
+        let (dst, jacobian) = (c.alloc(len), c.alloc(1));
+        c.tape.ops.push(Op::Constrain { transform: p.transform, theta: p.offset, len, dst, jacobian });
+        c.parameter_slots.push(dst);
+        jacobians.push(jacobian);
+        c.tape.transforms.push((p.transform, p.offset, len));
+    }
+    let density = c.node(&model.log_density);
+    c.tape.density_ops = c.tape.ops.len();
+    let mut outputs: Vec<(usize, usize)> =
+        model.parameters.iter().zip(&c.parameter_slots).map(|(p, &slot)| (slot, p.shape.len())).collect();
+    for (i, d) in model.derived.iter().enumerate() {
+        outputs.push((c.derived_slot(i), d.node.shape.len()));
+    }
+    let names = model.parameters.iter().map(|p| (&p.name, p.shape));
+    let columns = names.chain(model.derived.iter().map(|d| (&d.name, d.node.shape)));
+    Tape {
+        density,
+        jacobians,
+        outputs,
+        columns: columns.flat_map(|(name, shape)| shape.element_names(name)).collect(),
+        dim: model.dim,
+        ..c.tape
+    }
+}
+
+pub(crate) fn evaluate_constant(node: &Node, constants: &[Constant], mvnormals: &[MvNormal]) -> Vec<f64> {
+    debug_assert!(node.constant);
+    let mut c = Compiler::new(constants, &[], mvnormals.to_vec());
+    let at = c.node(node);
+    c.tape.template[at..at + node.shape.len()].to_vec()
+}
+
+struct Compiler<'m> {
+    constants: &'m [Constant],
+    derived: &'m [Derived],
+    parameter_slots: Vec<usize>,
+    constant_slots: Vec<Option<usize>>,
+    derived_slots: Vec<Option<usize>>,
+    tape: Tape,
+}
+
+impl<'m> Compiler<'m> {
+    fn new(constants: &'m [Constant], derived: &'m [Derived], mvnormals: Vec<MvNormal>) -> Self {
+        let tape = Tape {
+            ops: Vec::new(),
+            density_ops: 0,
+            template: Vec::new(),
+            positions: Vec::new(),
+            items: Vec::new(),
+            mvnormals,
+            density: 0,
+            jacobians: Vec::new(),
+            outputs: Vec::new(),
+            columns: Vec::new(),
+            dim: 0,
+            transforms: Vec::new(),
+        };
+        Compiler {
+            constants,
+            derived,
+            parameter_slots: Vec::new(),
+            constant_slots: vec![None; constants.len()],
+            derived_slots: vec![None; derived.len()],
+            tape,
+        }
+    }
+
+    fn alloc(&mut self, len: usize) -> usize {
+        let at = self.tape.template.len();
+        self.tape.template.resize(at + len, 0.0);
+        at
+    }
+
+    /// Add `op` to the tape, or, when its inputs are all known, run it now into the template.
+    fn emit(&mut self, op: Op, constant: bool) {
+        if constant {
+            let mut slots = std::mem::take(&mut self.tape.template);
+            exec::run(&self.tape, &op, &[], &mut slots);
+            self.tape.template = slots;
+        } else {
+            self.tape.ops.push(op);
+        }
+    }
+
+    fn arg(&mut self, node: &Node) -> Arg {
+        Arg { offset: self.node(node), stride: usize::from(node.shape != Shape::Scalar) }
+    }
+
+    fn derived_slot(&mut self, i: usize) -> usize {
+        if let Some(slot) = self.derived_slots[i] {
+            return slot;
+        }
+        let slot = self.node(&self.derived[i].node);
+        self.derived_slots[i] = Some(slot);
+        slot
+    }
+
+    /// Compile `node`; returns the first slot of its value.
+    fn node(&mut self, node: &Node) -> usize {
+        let len = node.shape.len();
+        let op = match &node.kind {
+            NodeKind::Constant(i) => {
+                if let Some(slot) = self.constant_slots[*i] {
+                    return slot;
+                }
+                let slot = self.alloc(len);
+                self.tape.template[slot..slot + len].copy_from_slice(&self.constants[*i].values);
+                self.constant_slots[*i] = Some(slot);
+                return slot;
+            }
+            NodeKind::Parameter(i) => return self.parameter_slots[*i],
+            NodeKind::Derived(i) => return self.derived_slot(*i),
+            NodeKind::Map(f, x) => {
+                let src = self.node(x);
+                Op::Map { f: *f, src, len, dst: self.alloc(len) }
+            }
+            NodeKind::Zip(f, a, b) => {
+                let (a, b) = (self.arg(a), self.arg(b));
+                Op::Zip { f: *f, a, b, len, dst: self.alloc(len) }
+            }
+            NodeKind::Reduce(f, x) => {
+                let src = self.node(x);
+                Op::Reduce { f: *f, src, len: x.shape.len(), dst: self.alloc(1) }
+            }
+            NodeKind::Dot(a, b) => {
+                let (a_at, b_at) = (self.node(a), self.node(b));
+                Op::Dot { a: a_at, b: b_at, len: a.shape.len(), dst: self.alloc(1) }
+            }
+            NodeKind::MatVec(m, v) => {
+                let (m_at, v_at) = (self.node(m), self.node(v));
+                let (rows, cols) = (len, v.shape.len());
+                Op::MatVec { m: m_at, v: v_at, rows, cols, dst: self.alloc(rows) }
+            }
+            NodeKind::Gather(x, positions) => {
+                let src = self.node(x);
+                let from = self.tape.positions.len();
+                self.tape.positions.extend_from_slice(positions);
+                Op::Gather { src, from, to: self.tape.positions.len(), dst: self.alloc(len) }
+            }
+            NodeKind::Stack(items) => {
+                let starts: Vec<usize> = items.iter().map(|item| self.node(item)).collect();
+                let from = self.tape.items.len();
+                self.tape.items.extend(starts);
+                let item_len = items[0].shape.len();
+                Op::Stack { from, to: self.tape.items.len(), item_len, dst: self.alloc(len) }
+            }
+            NodeKind::LogDensity { family, x, params } => {
+                let n = std::iter::once(&**x).chain(params).map(|p| p.shape.len()).max().unwrap_or(1);
+                let x = self.arg(x);
+                let mut args = [Arg { offset: 0, stride: 0 }; 3];
+                for (slot, p) in args.iter_mut().zip(params) {
+                    *slot = self.arg(p);
+                }
+                Op::LogDensity { family: *family, n, x, params: args, arity: params.len(), dst: self.alloc(1) }
+            }
+            NodeKind::MvNormal { index, x, mean } => {
+                let (x, mean) = (self.node(x), self.arg(mean));
+                Op::MvNormal { index: *index, x, mean, dst: self.alloc(1) }
+            }
+        };
+        let dst = op_dst(&op);
+        self.emit(op, node.constant);
+        dst
+    }
+}
+
+fn op_dst(op: &Op) -> usize {
+    match *op {
+        Op::Constrain { dst, .. }
+        | Op::Map { dst, .. }
+        | Op::Zip { dst, .. }
+        | Op::Reduce { dst, .. }
+        | Op::Dot { dst, .. }
+        | Op::MatVec { dst, .. }
+        | Op::Gather { dst, .. }
+        | Op::Stack { dst, .. }
+        | Op::LogDensity { dst, .. }
+        | Op::MvNormal { dst, .. } => dst,
+    }
+}

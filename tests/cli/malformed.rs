@@ -1,0 +1,123 @@
+//! Malformed models: each must be refused with exit status 2 and an error in the GNU
+//! `FILE:LINE:COL: error: message` form (GNU Coding Standards, "Formatting Error Messages"),
+//! the offending line, and a caret — never a panic.
+
+use super::{mixwell, text};
+
+/// (model text, line, column, a fragment of the message).
+const CASES: &[(&str, usize, usize, &str)] = &[
+    ("", 1, 1, "the model has no density"),
+    ("mu : real\n", 2, 1, "the model has no density"),
+    ("density = normal(1; 0, 1)\n", 1, 11, "does not depend on any parameter"),
+    ("mu : rael\ndensity = normal(mu; 0, 1)", 1, 6, "unknown support `rael`"),
+    ("mu : real\ndensity = normal(mu; 0, 1) *\n", 3, 1, "unexpected end of text"),
+    ("mu : real\ndensity = normal(mu; 0, 1\n", 3, 1, "unexpected end of text"),
+    ("mu : real\ndensity = normal(mu, 0, 1)", 2, 11, "needs its variable first"),
+    ("mu : real\ndensity = normal(mu; 0)", 2, 11, "takes 2 parameters after `;`, not 1"),
+    ("mu : real\ndensity = nromal(mu; 0, 1)", 2, 11, "unknown distribution `nromal`"),
+    ("mu : real\ndensity = normal(mu; 0, sigma)", 2, 24, "unknown name `sigma`"),
+    ("mu : real\nmu : positive\ndensity = normal(mu; 0, 1)", 2, 1, "`mu` is defined twice"),
+    ("mu : real\ndensity = normal(mu; 0, 1)\ndensity = normal(mu; 0, 2)", 3, 1, "exactly one density"),
+    ("mu : real\ndensity = normal(mu; 0, s)\ns = 2", 2, 24, "`s` is used before it is defined"),
+    ("x = [1, 2, 3]\nmu : real\ndensity = normal(x[4]; mu, 1)", 3, 20, "index 4 is out of range"),
+    ("x = [1, 2, 3]\nmu : real\ndensity = normal(x[0]; mu, 1)", 3, 20, "index 0 is out of range"),
+    ("x = [1, 2, 3]\nmu : real\ndensity = normal(x[1.5]; mu, 1)", 3, 20, "index 1.5 is out of range"),
+    ("x = [1, 2]\ny = [1, 2, 3]\nmu : real\ndensity = normal(x + y; mu, 1)", 4, 18, "a list of 2 and the right side is a list of 3"),
+    ("mu : real[0]\ndensity = normal(mu; 0, 1)", 1, 11, "the length of a vector parameter is 0"),
+    ("mu : real[2.5]\ndensity = normal(mu; 0, 1)", 1, 11, "the length of a vector parameter is 2.5"),
+    ("mu : between(1, 0)\ndensity = normal(mu; 0, 1)", 1, 14, "is not below the upper bound"),
+    ("mu : between(0)\ndensity = normal(mu; 0, 1)", 1, 15, "unexpected `)`"),
+    ("mu : above(nu)\ndensity = normal(mu; 0, 1)", 1, 12, "unknown name `nu`"),
+    ("mu : real\ndensity = poisson(mu; 3)", 2, 19, "needs data as its variable"),
+    ("k = [1, 2.5]\nr : positive\ndensity = poisson(k; r)", 3, 19, "the value 2.5 (element 2) is outside the support"),
+    ("y = [1, -2]\nr : positive\ndensity = exponential(y; r)", 3, 23, "the value -2 (element 2) is outside the support"),
+    ("y = [0, 1, 2]\np : unit\ndensity = bernoulli(y; p)", 3, 21, "the value 2 (element 3)"),
+    ("x = 1e999", 1, 5, "too large for a 64-bit float"),
+    ("mu : real\ndensity = normal(mu; 0, 1) $", 2, 28, "the character `$`"),
+    ("mu : real\ndensity = normal(mu; 0, 1))", 2, 27, "unexpected `)`"),
+    ("mu real\n", 1, 4, "unexpected `real`"),
+    ("= 3", 1, 1, "unexpected `=`"),
+    ("mu : real\ndensity = -normal(mu; 0, 1)", 2, 11, "a density factor must be positive"),
+    ("mu : real\ndensity = 0 * normal(mu; 0, 1)", 2, 11, "a density factor must be positive"),
+    ("mu : real\ndensity = normal(mu; 0, 1)^[1, 2]", 2, 28, "the power of a density factor is a list of 2"),
+    ("normal : real", 1, 1, "`normal` is the name of a built-in function or distribution"),
+    ("exp = 3", 1, 1, "`exp` is the name of a built-in"),
+    ("density : real", 1, 1, "`density` is the name of the model's density"),
+    ("m = [[1, 2], [3]]", 1, 13, "this element is a list of 1 but the first is a list of 2"),
+    ("m = [[[1]]]", 1, 6, "lists nest at most two deep"),
+    ("v = []", 1, 5, "an empty list"),
+    ("mu : real\ndensity = normal(mu; 0, 1) * foo(mu)", 2, 30, "unknown function `foo`"),
+    ("mu : real\ndensity = normal(mu; 0, 1) * exp(mu; 1)", 2, 30, "unknown distribution `exp`"),
+    ("mu : real\ndensity = normal(mu; 0, 1) * sum(mu, mu)", 2, 30, "`sum` takes 1 argument, not 2"),
+    ("b : real[2]\nM = [[1, 2, 3]]\ndensity = normal(matvec(M, b); 0, 1)", 3, 18, "`matvec` needs a matrix with as many columns"),
+    ("b : real[2]\ndensity = normal(dot(b, [1, 2, 3]); 0, 1)", 2, 18, "`dot` needs two lists of one length"),
+    ("mu : real\ndensity = normal(mu; 0, 1) * mu[1]", 2, 30, "`mu` is a single number"),
+    ("x = [1, 2]\nmu : real\ndensity = normal(x[1, 1]; mu, 1)", 3, 20, "`x` is a list of 2 but 2 indices are given"),
+    ("x = [1, 2]\nmu : real\ni : real\ndensity = normal(x[i]; mu, 1)", 4, 20, "an index must be known before sampling"),
+    ("b : real[2]\ndensity = mvnormal(b; 0, [[1, 2], [2, 1]])", 2, 26, "this covariance"),
+    ("b : real[2]\ndensity = mvnormal(b; 0, [[1, 0, 0], [0, 1, 0], [0, 0, 1]])", 2, 26, "the covariance is a 3×3 matrix"),
+    ("x = [1, 2]\nmu : real\ndensity = normal(x; mu, [1, 2, 3])", 3, 25, "this list has 3 elements but an earlier one has 2"),
+    ("mu : real\ndensity = normal(mu; [[1]], 1)", 2, 22, "takes numbers or lists, not a matrix"),
+    ("\u{0}\u{1}binary", 1, 1, "the character"),
+    ("mu : real\ns = exp(mu)\ndensity = normal(mu; 0, 1) * poisson(s; 1)", 3, 38, "needs data as its variable"),
+    ("x = log(-1)\n", 1, 5, "`x` has the value NaN"),
+    ("x = 1 / 0\n", 1, 5, "`x` has the value inf"),
+    ("mu : between(0, 1 / 0)\ndensity = normal(mu; 0, 1)", 1, 17, "the bound is inf"),
+    ("mu : real\ndensity = normal(mu; 0, 1)\n x", 3, 3, "unexpected end of text"),
+    ("mu : real\ndensity = normal(mu; 0, 1) * mu", 2, 1, ""),
+    ("mu : real\ndensity = normal(mu; 0, 1)\nmu2 = mu ^ [1, 2] + [1, 2, 3]", 3, 7, "a list of 2 and the right side is a list of 3"),
+];
+
+#[test]
+fn every_malformed_model_gets_a_positioned_error_and_status_2() {
+    let mut checked = 0;
+    for &(source, line, column, fragment) in CASES {
+        if fragment.is_empty() {
+            continue; // a well-formed control case, checked below
+        }
+        for command in [&["check", "-"][..], &["density", "-", "--at", "mu=0"][..]] {
+            let out = mixwell(command, source.as_bytes());
+            let stderr = text(&out.stderr);
+            assert_eq!(out.status.code(), Some(2), "{source:?}: status {:?}\n{stderr}", out.status);
+            let head = format!("<stdin>:{line}:{column}: error: ");
+            assert!(stderr.starts_with(&head), "{source:?}: expected `{head}…{fragment}`, got\n{stderr}");
+            assert!(stderr.lines().next().is_some_and(|l| l.contains(fragment)), "{source:?}: no `{fragment}` in\n{stderr}");
+            assert!(stderr.lines().nth(3).is_some_and(|l| l.contains('^')), "{source:?}: no caret in\n{stderr}");
+            assert!(out.stdout.is_empty(), "{source:?}: nothing on standard output");
+        }
+        checked += 1;
+    }
+    assert!(checked >= 50, "at least fifty malformed models ({checked})");
+}
+
+#[test]
+fn control_case_is_well_formed() {
+    let out = mixwell(&["check", "-"], b"mu : real\ndensity = normal(mu; 0, 1) * mu");
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+}
+
+#[test]
+fn deep_nesting_huge_text_and_binary_files_are_refused_cleanly() {
+    let deep = format!("x = {}1{}", "(".repeat(5000), ")".repeat(5000));
+    let out = mixwell(&["check", "-"], deep.as_bytes());
+    assert_eq!(out.status.code(), Some(2));
+    assert!(text(&out.stderr).contains("nested more than"), "{}", text(&out.stderr));
+
+    let huge = "# padding\n".repeat(500_000);
+    let out = mixwell(&["check", "-"], huge.as_bytes());
+    assert_eq!(out.status.code(), Some(2));
+    assert!(text(&out.stderr).contains("more than the limit"), "{}", text(&out.stderr));
+
+    let out = mixwell(&["check", "-"], b"mu : real\n\xff\xfe density");
+    assert_eq!(out.status.code(), Some(2));
+    assert!(text(&out.stderr).starts_with("<stdin>:2:1: error: the file is not UTF-8 text"), "{}", text(&out.stderr));
+}
+
+#[test]
+fn bad_command_lines_exit_with_status_2() {
+    for args in [&["check"][..], &["sample", "x"], &["density", "-"], &["check", "/no/such/file.mw"]] {
+        let out = mixwell(args, b"");
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {}", text(&out.stderr));
+        assert!(!out.stderr.is_empty());
+    }
+}
