@@ -5,10 +5,13 @@
 //! faces on top of them.
 #![cfg_attr(not(target_arch = "wasm32"), forbid(unsafe_code))]
 
+pub mod chain;
 pub mod diag;
 pub mod dist;
 pub mod lang;
+pub mod kernel;
 pub mod model;
+pub mod report;
 pub mod rng;
 pub mod tape;
 pub mod tune;

@@ -6,6 +6,7 @@
 mod args;
 mod check;
 mod density;
+mod run;
 
 use std::process::ExitCode;
 
@@ -30,6 +31,7 @@ pub fn main() -> ExitCode {
     let result = match cli.command {
         args::Command::Check(a) => check::run(&a),
         args::Command::Density(a) => density::run(&a),
+        args::Command::Run(a) => run::run(&a),
     };
     match result {
         Ok(output) => {
