@@ -78,7 +78,7 @@ impl Report {
                     collected.draws.iter().map(|rows| rows.iter().skip(c).step_by(width).copied().collect()).collect();
                 let slices: Vec<&[f64]> = per_chain.iter().map(Vec::as_slice).collect();
                 let summary = diag::summarise(&slices);
-                warnings.extend(diag::warnings(name, &summary, slices.len()));
+                warnings.extend(diag::warnings(name, &summary, slices.len(), &diag::Thresholds::default()));
                 Quantity { name: name.clone(), autocorrelation: diag::autocorrelation(&slices, lags), summary }
             })
             .collect();
