@@ -6,9 +6,11 @@
 //! coordinate widths) so that a step allocates nothing. Every evaluation of the density is
 //! counted, because a slice step can cost many.
 
+mod adaptive;
 mod random_walk;
 mod slice;
 
+pub use adaptive::{Adapter, Scheme};
 pub use random_walk::RandomWalk;
 pub use slice::Slice;
 
