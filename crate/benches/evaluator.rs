@@ -16,7 +16,8 @@ mod models;
 fn main() {
     println!("{:<44} {:>12} {:>12} {:>7}", "model", "evaluator", "by hand", "ratio");
     for bench in models::all() {
-        let tape = Tape::new(&check(&bench.source).unwrap_or_else(|d| panic!("{}", d.render(bench.name, &bench.source))));
+        let tape =
+            Tape::new(&check(&bench.source).unwrap_or_else(|d| panic!("{}", d.render(bench.name, &bench.source))));
         let mut scratch = tape.scratch();
         let mut rng = Stream::new(1, 0);
         let points: Vec<Vec<f64>> = (0..64).map(|_| (0..tape.dim()).map(|_| 0.5 * rng.normal()).collect()).collect();

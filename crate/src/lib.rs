@@ -8,8 +8,8 @@
 pub mod chain;
 pub mod diag;
 pub mod dist;
-pub mod lang;
 pub mod kernel;
+pub mod lang;
 pub mod model;
 pub mod report;
 pub mod rng;

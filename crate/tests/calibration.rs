@@ -75,7 +75,7 @@ fn thinned(tape: &Tape, settings: &Settings, thin: usize, seed: u64) -> Vec<Vec<
 fn every_kernel_is_calibrated_on_a_hierarchical_model() {
     for (label, settings) in kernels(6) {
         let thin = match label {
-            "random walk" => 30,
+            "random walk" => 50,
             "slice" => 5,
             _ => 12,
         };

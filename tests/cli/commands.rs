@@ -19,7 +19,8 @@ fn check_lists_every_example() {
 /// scipy.stats (tests/cli/reference/example_densities.py), to 1e-10 relative.
 #[test]
 fn density_of_every_example_agrees_with_scipy() {
-    let fixture: serde_json::Value = serde_json::from_str(include_str!("reference/example_densities.json")).expect("fixture");
+    let fixture: serde_json::Value =
+        serde_json::from_str(include_str!("reference/example_densities.json")).expect("fixture");
     let cases = fixture["cases"].as_array().expect("cases");
     let covered: Vec<&str> = cases.iter().map(|c| c["example"].as_str().expect("name")).collect();
     for path in examples() {
@@ -40,7 +41,10 @@ fn density_of_every_example_agrees_with_scipy() {
         for key in ["log_density", "log_density_unconstrained"] {
             let (ours, scipy) = (got[key].as_f64().expect("a number"), case[key].as_f64().expect("a number"));
             let relative = (ours - scipy).abs() / scipy.abs();
-            assert!(relative < 1e-10, "{path} {key}: mixwell {ours}, scipy {scipy}, relative difference {relative:.1e}");
+            assert!(
+                relative < 1e-10,
+                "{path} {key}: mixwell {ours}, scipy {scipy}, relative difference {relative:.1e}"
+            );
         }
     }
 }

@@ -1,8 +1,8 @@
 //! Black-box tests of the `mixwell` binary: exit statuses, positioned errors, and the commands'
 //! output on every example model.
 
-mod malformed;
 mod commands;
+mod malformed;
 
 use std::io::Write;
 use std::path::{Path, PathBuf};

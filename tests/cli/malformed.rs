@@ -22,7 +22,12 @@ const CASES: &[(&str, usize, usize, &str)] = &[
     ("x = [1, 2, 3]\nmu : real\ndensity = normal(x[4]; mu, 1)", 3, 20, "index 4 is out of range"),
     ("x = [1, 2, 3]\nmu : real\ndensity = normal(x[0]; mu, 1)", 3, 20, "index 0 is out of range"),
     ("x = [1, 2, 3]\nmu : real\ndensity = normal(x[1.5]; mu, 1)", 3, 20, "index 1.5 is out of range"),
-    ("x = [1, 2]\ny = [1, 2, 3]\nmu : real\ndensity = normal(x + y; mu, 1)", 4, 18, "a list of 2 and the right side is a list of 3"),
+    (
+        "x = [1, 2]\ny = [1, 2, 3]\nmu : real\ndensity = normal(x + y; mu, 1)",
+        4,
+        18,
+        "a list of 2 and the right side is a list of 3",
+    ),
     ("mu : real[0]\ndensity = normal(mu; 0, 1)", 1, 11, "the length of a vector parameter is 0"),
     ("mu : real[2.5]\ndensity = normal(mu; 0, 1)", 1, 11, "the length of a vector parameter is 2.5"),
     ("mu : between(1, 0)\ndensity = normal(mu; 0, 1)", 1, 14, "is not below the upper bound"),
@@ -30,7 +35,12 @@ const CASES: &[(&str, usize, usize, &str)] = &[
     ("mu : above(nu)\ndensity = normal(mu; 0, 1)", 1, 12, "unknown name `nu`"),
     ("mu : real\ndensity = poisson(mu; 3)", 2, 19, "needs data as its variable"),
     ("k = [1, 2.5]\nr : positive\ndensity = poisson(k; r)", 3, 19, "the value 2.5 (element 2) is outside the support"),
-    ("y = [1, -2]\nr : positive\ndensity = exponential(y; r)", 3, 23, "the value -2 (element 2) is outside the support"),
+    (
+        "y = [1, -2]\nr : positive\ndensity = exponential(y; r)",
+        3,
+        23,
+        "the value -2 (element 2) is outside the support",
+    ),
     ("y = [0, 1, 2]\np : unit\ndensity = bernoulli(y; p)", 3, 21, "the value 2 (element 3)"),
     ("x = 1e999", 1, 5, "too large for a 64-bit float"),
     ("mu : real\ndensity = normal(mu; 0, 1) $", 2, 28, "the character `$`"),
@@ -49,14 +59,29 @@ const CASES: &[(&str, usize, usize, &str)] = &[
     ("mu : real\ndensity = normal(mu; 0, 1) * foo(mu)", 2, 30, "unknown function `foo`"),
     ("mu : real\ndensity = normal(mu; 0, 1) * exp(mu; 1)", 2, 30, "unknown distribution `exp`"),
     ("mu : real\ndensity = normal(mu; 0, 1) * sum(mu, mu)", 2, 30, "`sum` takes 1 argument, not 2"),
-    ("b : real[2]\nM = [[1, 2, 3]]\ndensity = normal(matvec(M, b); 0, 1)", 3, 18, "`matvec` needs a matrix with as many columns"),
+    (
+        "b : real[2]\nM = [[1, 2, 3]]\ndensity = normal(matvec(M, b); 0, 1)",
+        3,
+        18,
+        "`matvec` needs a matrix with as many columns",
+    ),
     ("b : real[2]\ndensity = normal(dot(b, [1, 2, 3]); 0, 1)", 2, 18, "`dot` needs two lists of one length"),
     ("mu : real\ndensity = normal(mu; 0, 1) * mu[1]", 2, 30, "`mu` is a single number"),
     ("x = [1, 2]\nmu : real\ndensity = normal(x[1, 1]; mu, 1)", 3, 20, "`x` is a list of 2 but 2 indices are given"),
     ("x = [1, 2]\nmu : real\ni : real\ndensity = normal(x[i]; mu, 1)", 4, 20, "an index must be known before sampling"),
     ("b : real[2]\ndensity = mvnormal(b; 0, [[1, 2], [2, 1]])", 2, 26, "this covariance"),
-    ("b : real[2]\ndensity = mvnormal(b; 0, [[1, 0, 0], [0, 1, 0], [0, 0, 1]])", 2, 26, "the covariance is a 3×3 matrix"),
-    ("x = [1, 2]\nmu : real\ndensity = normal(x; mu, [1, 2, 3])", 3, 25, "this list has 3 elements but an earlier one has 2"),
+    (
+        "b : real[2]\ndensity = mvnormal(b; 0, [[1, 0, 0], [0, 1, 0], [0, 0, 1]])",
+        2,
+        26,
+        "the covariance is a 3×3 matrix",
+    ),
+    (
+        "x = [1, 2]\nmu : real\ndensity = normal(x; mu, [1, 2, 3])",
+        3,
+        25,
+        "this list has 3 elements but an earlier one has 2",
+    ),
     ("mu : real\ndensity = normal(mu; [[1]], 1)", 2, 22, "takes numbers or lists, not a matrix"),
     ("\u{0}\u{1}binary", 1, 1, "the character"),
     ("mu : real\ns = exp(mu)\ndensity = normal(mu; 0, 1) * poisson(s; 1)", 3, 38, "needs data as its variable"),
@@ -65,7 +90,12 @@ const CASES: &[(&str, usize, usize, &str)] = &[
     ("mu : between(0, 1 / 0)\ndensity = normal(mu; 0, 1)", 1, 17, "the bound is inf"),
     ("mu : real\ndensity = normal(mu; 0, 1)\n x", 3, 3, "unexpected end of text"),
     ("mu : real\ndensity = normal(mu; 0, 1) * mu", 2, 1, ""),
-    ("mu : real\ndensity = normal(mu; 0, 1)\nmu2 = mu ^ [1, 2] + [1, 2, 3]", 3, 7, "a list of 2 and the right side is a list of 3"),
+    (
+        "mu : real\ndensity = normal(mu; 0, 1)\nmu2 = mu ^ [1, 2] + [1, 2, 3]",
+        3,
+        7,
+        "a list of 2 and the right side is a list of 3",
+    ),
 ];
 
 #[test]
@@ -86,7 +116,10 @@ fn every_malformed_model_gets_a_positioned_error_and_status_2() {
                 && stderr.lines().nth(3).is_some_and(|l| l.contains('^'))
                 && out.stdout.is_empty();
             if !well_formed {
-                problems.push(format!("{source:?} ({command:?}): expected status 2 and `{head}…{fragment}`, got {:?}\n{stderr}", out.status.code()));
+                problems.push(format!(
+                    "{source:?} ({command:?}): expected status 2 and `{head}…{fragment}`, got {:?}\n{stderr}",
+                    out.status.code()
+                ));
             }
         }
         checked += 1;

@@ -88,7 +88,8 @@ fn logistic_500x5() -> Bench {
 fn correlated_gaussian_10() -> Bench {
     let d = 10;
     let sd: Vec<f64> = (0..d).map(|i| 0.5 + 0.25 * i as f64).collect();
-    let cov: Vec<f64> = (0..d * d).map(|k| libm::pow(0.5, (k / d).abs_diff(k % d) as f64) * sd[k / d] * sd[k % d]).collect();
+    let cov: Vec<f64> =
+        (0..d * d).map(|k| libm::pow(0.5, (k / d).abs_diff(k % d) as f64) * sd[k / d] * sd[k % d]).collect();
     let rows: Vec<String> = (0..d).map(|i| list(&cov[i * d..(i + 1) * d])).collect();
     let source = format!("S = [{}]\nx : real[{d}]\ndensity = mvnormal(x; 0, S)\n", rows.join(", "));
     let l = nalgebra::DMatrix::from_row_slice(d, d, &cov).cholesky().expect("positive definite").l();

@@ -22,7 +22,9 @@ pub fn run(args: &DensityArgs) -> Result<String, Failure> {
             .map(|v| v.trim().parse::<f64>().map_err(|_| format!("--at {name}: `{}` is not a number", v.trim())))
             .collect::<Result<Vec<_>, _>>()?;
         if numbers.len() != p.shape.len() {
-            return Err(format!("--at {name}: {} value(s) given, but `{name}` has {}", numbers.len(), p.shape.len()).into());
+            return Err(
+                format!("--at {name}: {} value(s) given, but `{name}` has {}", numbers.len(), p.shape.len()).into()
+            );
         }
         for (k, v) in numbers.into_iter().enumerate() {
             if values[p.offset + k].replace(v).is_some() {

@@ -65,11 +65,13 @@ pub(crate) fn read_model(path: &str) -> Result<(String, String), Failure> {
             let valid = e.utf8_error().valid_up_to();
             let text = String::from_utf8_lossy(&e.into_bytes()[..valid]).into_owned();
             let at = crate::lang::Position::of(&text, valid);
-            Err(Failure(format!("{name}:{}:{}: error: the file is not UTF-8 text (byte {valid} is not)\n", at.line, at.column)))
+            Err(Failure(format!(
+                "{name}:{}:{}: error: the file is not UTF-8 text (byte {valid} is not)\n",
+                at.line, at.column
+            )))
         }
     }
 }
-
 
 /// Check a model, rendering any problem against its text.
 pub(crate) fn load(path: &str) -> Result<(String, String, crate::model::Model), Failure> {

@@ -24,7 +24,8 @@ pub fn run(args: &RunArgs) -> Result<String, Failure> {
     bar.finish();
     let report = Report::new(&collected, tape.columns(), tape.dim(), args.lags);
     if let Some(path) = &args.csv {
-        std::fs::write(path, report::csv(&collected, tape.columns())).map_err(|e| format!("cannot write `{path}`: {e}"))?;
+        std::fs::write(path, report::csv(&collected, tape.columns()))
+            .map_err(|e| format!("cannot write `{path}`: {e}"))?;
     }
     let json = serde_json::to_string_pretty(&report)? + "\n";
     match args.json.as_deref() {

@@ -53,7 +53,9 @@ impl Settings {
     pub fn describe(&self) -> String {
         match self {
             Settings::RandomWalk { scale, blend } => format!("random-walk Metropolis, scale {scale:.4}, blend {blend}"),
-            Settings::Slice { width, stepout } => format!("slice sampling, width {width:.4} sd, step-out limit {stepout}"),
+            Settings::Slice { width, stepout } => {
+                format!("slice sampling, width {width:.4} sd, step-out limit {stepout}")
+            }
             Settings::Mixture { components } => format!("a mixture of {} kernels", components.len()),
         }
     }
@@ -74,7 +76,9 @@ impl Settings {
                     return Err(format!("the slice width must be a positive number, not {width}"));
                 }
                 if !(1..=MAX_STEPOUT).contains(stepout) {
-                    return Err(format!("the step-out limit must be a whole number from 1 to {MAX_STEPOUT}, not {stepout}"));
+                    return Err(format!(
+                        "the step-out limit must be a whole number from 1 to {MAX_STEPOUT}, not {stepout}"
+                    ));
                 }
             }
             Settings::Mixture { components } => {

@@ -144,7 +144,13 @@ impl<'s> Checker<'s> {
         }
         let written = Support { size: None, ..support.clone() }.to_string();
         self.bindings.insert(name.name.clone(), Binding::Parameter(self.parameters.len()));
-        self.parameters.push(Parameter { name: name.name.clone(), support: written, transform, shape, offset: self.dim });
+        self.parameters.push(Parameter {
+            name: name.name.clone(),
+            support: written,
+            transform,
+            shape,
+            offset: self.dim,
+        });
         self.dim += shape.len();
         Ok(())
     }
@@ -164,7 +170,10 @@ impl<'s> Checker<'s> {
         let (_, values) = self.constant_values(e, what)?;
         match values.as_slice() {
             [v] if v.fract() == 0.0 && *v >= lo as f64 && *v <= hi as f64 => Ok(*v as usize),
-            [v] => Err(Diagnostic::new(format!("{what} is {v}"), e.span).expected(format!("a whole number from {lo} to {hi}"))),
+            [v] => {
+                Err(Diagnostic::new(format!("{what} is {v}"), e.span)
+                    .expected(format!("a whole number from {lo} to {hi}")))
+            }
             _ => Err(Diagnostic::new(format!("{what} must be a single number"), e.span).expected("a whole number")),
         }
     }
@@ -306,14 +315,17 @@ impl<'s> Checker<'s> {
             });
         }
         if let Some(defined) = self.defined_at.get(name) {
-            return Err(Diagnostic::new(format!("`{name}` is used before it is defined"), span)
-                .help(format!("`{name}` is defined on line {}; move that line above this one", self.line_of(*defined))));
+            return Err(Diagnostic::new(format!("`{name}` is used before it is defined"), span).help(format!(
+                "`{name}` is defined on line {}; move that line above this one",
+                self.line_of(*defined)
+            )));
         }
         if is_reserved(name) {
             return Err(Diagnostic::new(format!("`{name}` is a function or distribution, not a value"), span)
                 .expected(format!("a call such as `{name}(…)`")));
         }
-        let mut d = Diagnostic::new(format!("unknown name `{name}`"), span).expected("a data name, a parameter or a number");
+        let mut d =
+            Diagnostic::new(format!("unknown name `{name}`"), span).expected("a data name, a parameter or a number");
         if let Some(similar) = did_you_mean(name, self.bindings.keys().map(String::as_str)) {
             d = d.help(format!("did you mean `{similar}`?"));
         }
@@ -362,7 +374,10 @@ impl<'s> Checker<'s> {
         };
         let dims = node.shape.dims();
         if dims.is_empty() {
-            return Err(Diagnostic::new(format!("{described} is a single number and has no elements to pick"), base.span));
+            return Err(Diagnostic::new(
+                format!("{described} is a single number and has no elements to pick"),
+                base.span,
+            ));
         }
         if indices.is_empty() || indices.len() > dims.len() {
             let span = indices.first().map_or(base.span, |first| first.span.to(indices[indices.len() - 1].span));
@@ -480,8 +495,11 @@ impl<'s> Checker<'s> {
                         Ok(Node { kind: NodeKind::MatVec(Box::new(m), Box::new(v)), shape: Shape::Vector(r), constant })
                     }
                     (sm, sv) => Err(Diagnostic::new(
-                        format!("`matvec` needs a matrix with as many columns as the list has elements, not {} and {}",
-                            sm.describe(), sv.describe()),
+                        format!(
+                            "`matvec` needs a matrix with as many columns as the list has elements, not {} and {}",
+                            sm.describe(),
+                            sv.describe()
+                        ),
                         span,
                     )
                     .expected("`matvec(M, v)` with M an r×c matrix and v a list of c")),
@@ -513,7 +531,12 @@ impl<'s> Checker<'s> {
         let names = family.params();
         if args.len() != names.len() {
             return Err(Diagnostic::new(
-                format!("`{name}` takes {} parameter{} after `;`, not {}", names.len(), if names.len() == 1 { "" } else { "s" }, args.len()),
+                format!(
+                    "`{name}` takes {} parameter{} after `;`, not {}",
+                    names.len(),
+                    if names.len() == 1 { "" } else { "s" },
+                    args.len()
+                ),
                 e.span,
             )
             .expected(format!("`{name}(x; {})`", names.join(", "))));
@@ -527,9 +550,15 @@ impl<'s> Checker<'s> {
                 Shape::Scalar => {}
                 Shape::Vector(n) => match length {
                     Some((m, first)) if m != n => {
-                        return Err(Diagnostic::new(format!("this list has {n} elements but an earlier one has {m}"), arg.span)
-                            .help(format!("the earlier list is at column {}", Position::of(self.source, first.start).column))
-                            .expected("lists of one length, or single numbers that apply to every element"));
+                        return Err(Diagnostic::new(
+                            format!("this list has {n} elements but an earlier one has {m}"),
+                            arg.span,
+                        )
+                        .help(format!(
+                            "the earlier list is at column {}",
+                            Position::of(self.source, first.start).column
+                        ))
+                        .expected("lists of one length, or single numbers that apply to every element"));
                     }
                     _ => length = Some((n, arg.span)),
                 },
@@ -541,8 +570,11 @@ impl<'s> Checker<'s> {
         if x.constant {
             self.check_variate(family, &x, &params, variate)?;
         } else if matches!(family.variate(), Variate::Count | Variate::Binary) {
-            return Err(Diagnostic::new(format!("`{name}` is a distribution of counts and needs data as its variable"), variate.span)
-                .expected("whole numbers known before sampling"));
+            return Err(Diagnostic::new(
+                format!("`{name}` is a distribution of counts and needs data as its variable"),
+                variate.span,
+            )
+            .expected("whole numbers known before sampling"));
         }
         let constant = x.constant && params.iter().all(|p| p.constant);
         Ok(Node { kind: NodeKind::LogDensity { family, x: Box::new(x), params }, shape: Shape::Scalar, constant })
@@ -583,8 +615,11 @@ impl<'s> Checker<'s> {
         };
         let mean = self.expr(&args[0])?;
         if !matches!(mean.shape, Shape::Scalar) && mean.shape != Shape::Vector(d) {
-            return Err(Diagnostic::new(format!("the mean is {} but the variable is a list of {d}", mean.shape.describe()), args[0].span)
-                .expected(format!("a number or a list of {d}")));
+            return Err(Diagnostic::new(
+                format!("the mean is {} but the variable is a list of {d}", mean.shape.describe()),
+                args[0].span,
+            )
+            .expected(format!("a number or a list of {d}")));
         }
         let cov = self.expr(&args[1])?;
         if cov.shape != Shape::Matrix(d, d) {
@@ -596,7 +631,8 @@ impl<'s> Checker<'s> {
                 .expected("a matrix known before sampling"));
         }
         let values = self.evaluate(&cov);
-        let dist = MvNormal::new(&values, d).map_err(|why| Diagnostic::new(format!("this covariance {why}"), args[1].span))?;
+        let dist =
+            MvNormal::new(&values, d).map_err(|why| Diagnostic::new(format!("this covariance {why}"), args[1].span))?;
         self.mvnormals.push(dist);
         let constant = x.constant && mean.constant;
         let kind = NodeKind::MvNormal { index: self.mvnormals.len() - 1, x: Box::new(x), mean: Box::new(mean) };

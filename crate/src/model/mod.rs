@@ -57,9 +57,7 @@ impl Shape {
         match self {
             Shape::Scalar => vec![name.to_string()],
             Shape::Vector(n) => (1..=n).map(|i| format!("{name}[{i}]")).collect(),
-            Shape::Matrix(r, c) => {
-                (1..=r).flat_map(|i| (1..=c).map(move |j| format!("{name}[{i},{j}]"))).collect()
-            }
+            Shape::Matrix(r, c) => (1..=r).flat_map(|i| (1..=c).map(move |j| format!("{name}[{i},{j}]"))).collect(),
         }
     }
 }
@@ -115,9 +113,17 @@ pub enum NodeKind {
     /// Scalars (or equal-length rows) laid end to end.
     Stack(Vec<Node>),
     /// Σᵢ log f(xᵢ; θᵢ), a scalar.
-    LogDensity { family: Family, x: Box<Node>, params: Vec<Node> },
+    LogDensity {
+        family: Family,
+        x: Box<Node>,
+        params: Vec<Node>,
+    },
     /// log N(x; mean, Σ) with Σ the covariance of `Model::mvnormals[index]`.
-    MvNormal { index: usize, x: Box<Node>, mean: Box<Node> },
+    MvNormal {
+        index: usize,
+        x: Box<Node>,
+        mean: Box<Node>,
+    },
 }
 
 /// A model ready to compile.
@@ -147,7 +153,11 @@ impl Model {
                 .iter()
                 .filter_map(|c| Some(DataInfo { name: c.name.clone()?, shape: c.shape.dims() }))
                 .collect(),
-            derived: self.derived.iter().map(|d| DerivedInfo { name: d.name.clone(), shape: d.node.shape.dims() }).collect(),
+            derived: self
+                .derived
+                .iter()
+                .map(|d| DerivedInfo { name: d.name.clone(), shape: d.node.shape.dims() })
+                .collect(),
         }
     }
 }

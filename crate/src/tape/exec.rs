@@ -61,7 +61,11 @@ pub(crate) fn run(tape: &Tape, op: &Op, theta: &[f64], slots: &mut [f64]) {
 
 #[inline]
 fn column(slots: &[f64], arg: Arg, len: usize) -> Col<'_> {
-    if arg.stride == 0 { Col::scalar(&slots[arg.offset..arg.offset + 1]) } else { Col::vector(&slots[arg.offset..arg.offset + len]) }
+    if arg.stride == 0 {
+        Col::scalar(&slots[arg.offset..arg.offset + 1])
+    } else {
+        Col::vector(&slots[arg.offset..arg.offset + len])
+    }
 }
 
 /// Element-wise `f`, with the common cases written as plain loops the compiler can vectorise.

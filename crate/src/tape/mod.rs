@@ -12,9 +12,9 @@ mod compile;
 mod exec;
 
 use crate::dist::MvNormal;
+use crate::model::builtins::{BinaryFn, ReduceFn, UnaryFn};
 use crate::model::support::Transform;
 use crate::model::{Constant, Model, Node};
-use crate::model::builtins::{BinaryFn, ReduceFn, UnaryFn};
 
 /// Where an argument lives: `stride` 0 repeats `slots[offset]`, stride 1 walks from it.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -28,18 +28,73 @@ pub(crate) struct Arg {
 pub(crate) enum Op {
     /// Unconstrained θ[theta..theta+len] to constrained values at `dst`; the summed
     /// log-Jacobian goes to slot `jacobian`.
-    Constrain { transform: Transform, theta: usize, len: usize, dst: usize, jacobian: usize },
-    Map { f: UnaryFn, src: usize, len: usize, dst: usize },
-    Zip { f: BinaryFn, a: Arg, b: Arg, len: usize, dst: usize },
-    Reduce { f: ReduceFn, src: usize, len: usize, dst: usize },
-    Dot { a: usize, b: usize, len: usize, dst: usize },
-    MatVec { m: usize, v: usize, rows: usize, cols: usize, dst: usize },
+    Constrain {
+        transform: Transform,
+        theta: usize,
+        len: usize,
+        dst: usize,
+        jacobian: usize,
+    },
+    Map {
+        f: UnaryFn,
+        src: usize,
+        len: usize,
+        dst: usize,
+    },
+    Zip {
+        f: BinaryFn,
+        a: Arg,
+        b: Arg,
+        len: usize,
+        dst: usize,
+    },
+    Reduce {
+        f: ReduceFn,
+        src: usize,
+        len: usize,
+        dst: usize,
+    },
+    Dot {
+        a: usize,
+        b: usize,
+        len: usize,
+        dst: usize,
+    },
+    MatVec {
+        m: usize,
+        v: usize,
+        rows: usize,
+        cols: usize,
+        dst: usize,
+    },
     /// `dst[k] = slots[src + positions[k]]` for the positions in `Tape::positions[from..to]`.
-    Gather { src: usize, from: usize, to: usize, dst: usize },
+    Gather {
+        src: usize,
+        from: usize,
+        to: usize,
+        dst: usize,
+    },
     /// Items of `item_len` slots each, starting at `Tape::items[from..to]`, laid end to end.
-    Stack { from: usize, to: usize, item_len: usize, dst: usize },
-    LogDensity { family: crate::dist::Family, n: usize, x: Arg, params: [Arg; 3], arity: usize, dst: usize },
-    MvNormal { index: usize, x: usize, mean: Arg, dst: usize },
+    Stack {
+        from: usize,
+        to: usize,
+        item_len: usize,
+        dst: usize,
+    },
+    LogDensity {
+        family: crate::dist::Family,
+        n: usize,
+        x: Arg,
+        params: [Arg; 3],
+        arity: usize,
+        dst: usize,
+    },
+    MvNormal {
+        index: usize,
+        x: usize,
+        mean: Arg,
+        dst: usize,
+    },
 }
 
 /// A compiled model. Immutable and cheap to share between chains; each chain owns a [`Scratch`].

@@ -18,11 +18,13 @@ fn close(a: f64, b: f64) -> bool {
 
 #[test]
 fn normal_model_matches_the_hand_written_density_and_jacobian() {
-    let t = tape("y = [1.5, 2.5, 0.5]\nmu : real\nsigma : positive\ndensity = normal(mu; 0, 10) * normal(y; mu, sigma)\n");
+    let t =
+        tape("y = [1.5, 2.5, 0.5]\nmu : real\nsigma : positive\ndensity = normal(mu; 0, 10) * normal(y; mu, sigma)\n");
     let (mu, sigma) = (0.7, 1.3);
     let theta = [mu, libm::log(sigma)];
     let (constrained, jacobian) = t.log_density_parts(&theta, &mut t.scratch());
-    let by_hand = log_normal_pdf(mu, 0.0, 10.0) + [1.5, 2.5, 0.5].iter().map(|&y| log_normal_pdf(y, mu, sigma)).sum::<f64>();
+    let by_hand =
+        log_normal_pdf(mu, 0.0, 10.0) + [1.5, 2.5, 0.5].iter().map(|&y| log_normal_pdf(y, mu, sigma)).sum::<f64>();
     assert!(close(constrained, by_hand), "{constrained} vs {by_hand}");
     // x = eᵘ has log-Jacobian u = log σ.
     assert!(close(jacobian, libm::log(sigma)));
@@ -62,7 +64,10 @@ tot = dot(b, [10, 100]) + mean(fit) + max(fit) + min(b[1], b[2])
 density = normal(b; 0, 1) * normal(s; 1, 1) * normal(picked; 0, s)
 ";
     let t = tape(src);
-    assert_eq!(t.columns(), ["b[1]", "b[2]", "s", "fit[1]", "fit[2]", "fit[3]", "picked[1]", "picked[2]", "picked[3]", "corner", "tot"]);
+    assert_eq!(
+        t.columns(),
+        ["b[1]", "b[2]", "s", "fit[1]", "fit[2]", "fit[3]", "picked[1]", "picked[2]", "picked[3]", "corner", "tot"]
+    );
     let theta = [0.5, -1.0, libm::log(2.0)];
     let mut scratch = t.scratch();
     let lp = t.log_density(&theta, &mut scratch);
@@ -81,7 +86,9 @@ density = normal(b; 0, 1) * normal(s; 1, 1) * normal(picked; 0, s)
 
 #[test]
 fn supports_map_back_and_forth() {
-    let t = tape("a : between(-1, 3)\nb : below(2)[2]\nc : unit\ndensity = normal(a; 0, 1) * normal(b; 0, 1) * normal(c; 0, 1)\n");
+    let t = tape(
+        "a : between(-1, 3)\nb : below(2)[2]\nc : unit\ndensity = normal(a; 0, 1) * normal(b; 0, 1) * normal(c; 0, 1)\n",
+    );
     let values = [2.5, 1.0, -7.0, 0.25];
     let theta = t.unconstrain(&values).expect("inside the supports");
     let back = t.constrain(&theta);
