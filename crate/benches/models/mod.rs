@@ -86,7 +86,7 @@ fn logistic_500x5() -> Bench {
 
 /// x ~ N(0, Σ) in 10 dimensions with Σ_ij = 0.5^|i−j| · s_i s_j.
 fn correlated_gaussian_10() -> Bench {
-    let d = 10;
+    let d: usize = 10;
     let sd: Vec<f64> = (0..d).map(|i| 0.5 + 0.25 * i as f64).collect();
     let cov: Vec<f64> =
         (0..d * d).map(|k| libm::pow(0.5, (k / d).abs_diff(k % d) as f64) * sd[k / d] * sd[k % d]).collect();
