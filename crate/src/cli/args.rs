@@ -60,6 +60,26 @@ pub struct RunArgs {
     /// Slice step-out limit, in widths [default: 20].
     #[arg(long)]
     pub stepout: Option<u32>,
+    /// How to choose the kernel's settings before sampling: Bayesian optimisation, Robbins–Monro
+    /// acceptance targeting, adaptive Metropolis, or none [default: bo, or none when a setting
+    /// such as --scale or --width is given].
+    #[arg(long, value_enum)]
+    pub tune: Option<TuneMethod>,
+    /// Also run every other method that applies, with the same budget, and compare them.
+    #[arg(long)]
+    pub compare: bool,
+    /// What a tuning trial is judged by.
+    #[arg(long, value_enum, default_value = "ess-per-eval")]
+    pub score: ScoreKind,
+    /// Bayesian optimisation: number of trials.
+    #[arg(long, default_value_t = 100)]
+    pub trials: usize,
+    /// Bayesian optimisation: steps per chain in each trial.
+    #[arg(long, default_value_t = 100)]
+    pub window: usize,
+    /// After tuning: the single best setting, or a fixed mixture of good ones.
+    #[arg(long, value_enum, default_value = "best")]
+    pub freeze: FreezeKind,
     /// Number of chains.
     #[arg(long, default_value_t = 4)]
     pub chains: usize,
@@ -90,6 +110,26 @@ pub struct RunArgs {
     /// No progress bar.
     #[arg(long)]
     pub quiet: bool,
+}
+
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum TuneMethod {
+    Bo,
+    Rm,
+    Am,
+    None,
+}
+
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ScoreKind {
+    Acf,
+    EssPerEval,
+}
+
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum FreezeKind {
+    Best,
+    Mixture,
 }
 
 #[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
