@@ -34,7 +34,8 @@ fn acceptance(c: &Collected) -> f64 {
 fn bayesian_optimisation_finds_the_optimal_random_walk_scale() {
     for (d, acceptance_band) in [(2, (0.197, 0.527)), (10, (0.120, 0.451)), (20, (0.106, 0.448))] {
         let tape = standard_normal(d);
-        let collected = run(&tape, Settings::default_for("rwm", d), Tuning::Bo(BoConfig::default()), 1000, 40 + d as u64);
+        let collected =
+            run(&tape, Settings::default_for("rwm", d), Tuning::Bo(BoConfig::default()), 1000, 40 + d as u64);
         let Settings::RandomWalk { scale, .. } = collected.settings else { panic!("a random walk was tuned") };
         // The proposal is scale × the pilot's covariance factor; the pilot's sd is about 1.
         let pilot_sd = (0..d).map(|i| collected.geometry.sd(i)).sum::<f64>() / d as f64;
@@ -80,7 +81,11 @@ fn adaptive_metropolis_learns_the_covariance() {
 fn frozen_kernels_still_sample_the_posterior() {
     let cases = [
         ("theta : unit\ndensity = beta(theta; 2, 3) * binomial(7; 20, theta)\n", "theta", 0.36),
-        ("y = [3, 5, 2, 4, 6, 3]\nrate : positive\ndensity = gamma(rate; 2, 1) * poisson(y; rate)\n", "rate", 25.0 / 7.0),
+        (
+            "y = [3, 5, 2, 4, 6, 3]\nrate : positive\ndensity = gamma(rate; 2, 1) * poisson(y; rate)\n",
+            "rate",
+            25.0 / 7.0,
+        ),
     ];
     for (k, (source, name, mean)) in cases.into_iter().enumerate() {
         let tape = compile(source);

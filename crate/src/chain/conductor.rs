@@ -64,6 +64,59 @@ pub struct RunConfig {
     pub tuning: Tuning,
 }
 
+/// Most chains a run may have.
+pub const MAX_CHAINS: usize = 64;
+/// Fewest draws per chain: split R-hat needs two halves of at least two.
+pub const MIN_DRAWS: usize = 4;
+/// Most draws, warm-up steps, pilot sweeps and adaptation steps per chain.
+pub const MAX_DRAWS: usize = 10_000_000;
+pub const MAX_WARMUP: usize = 100_000_000;
+pub const MAX_PILOT: usize = 1_000_000;
+pub const MAX_ADAPT_STEPS: usize = 100_000_000;
+/// Most tuning trials, and fewest and most steps in one trial window.
+pub const MAX_TRIALS: usize = 10_000;
+pub const WINDOW_RANGE: (usize, usize) = (4, 100_000);
+
+impl RunConfig {
+    /// Why this configuration cannot run, if it cannot.
+    pub fn validate(&self) -> Result<(), String> {
+        let within = |what: &str, value: usize, lo: usize, hi: usize| {
+            if (lo..=hi).contains(&value) {
+                Ok(())
+            } else {
+                Err(format!("{what} must be from {lo} to {hi}, not {value}"))
+            }
+        };
+        within("the number of chains", self.chains, 1, MAX_CHAINS)?;
+        within("the number of draws per chain", self.draws, MIN_DRAWS, MAX_DRAWS)?;
+        within("the number of warm-up steps", self.warmup, 0, MAX_WARMUP)?;
+        within("the number of pilot sweeps", self.pilot, 0, MAX_PILOT)?;
+        self.settings.validate()?;
+        if matches!(self.settings, Settings::Mixture { .. }) && self.tuning != Tuning::None {
+            return Err("a mixture of kernels cannot be tuned; give a random walk or a slice sampler".into());
+        }
+        match &self.tuning {
+            Tuning::None => Ok(()),
+            Tuning::Bo(bo) => {
+                within("the number of tuning trials", bo.trials, 1, MAX_TRIALS)?;
+                within("the steps per tuning trial", bo.window, WINDOW_RANGE.0, WINDOW_RANGE.1)
+            }
+            Tuning::Rm { steps } | Tuning::Am { steps } => {
+                if !matches!(self.settings, Settings::RandomWalk { .. }) {
+                    return Err("Robbins–Monro and adaptive Metropolis adapt a random walk, not a slice sampler".into());
+                }
+                within("the number of adaptation steps", *steps, 1, MAX_ADAPT_STEPS)
+            }
+        }
+    }
+
+    /// Bytes the draws will take while being summarised (held as rows and once more as columns),
+    /// for a model with `columns` values per draw.
+    pub fn draw_bytes(&self, columns: usize) -> f64 {
+        2.0 * 8.0 * self.draws as f64 * self.chains as f64 * columns as f64
+    }
+}
+
 /// Which phase the run is in and how far along.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Progress {
