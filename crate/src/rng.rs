@@ -69,10 +69,11 @@ impl Stream {
         -libm::log(self.open_uniform())
     }
 
-    /// A fresh seed from the operating system or browser, for runs the user did not seed.
-    /// The seed is then reported, so even these runs can be repeated.
+    /// A fresh seed from the operating system or browser, for runs the user did not seed. The
+    /// seed is then reported, so even these runs can be repeated. It is below 2⁵³, so that it
+    /// travels through JavaScript and JSON exactly.
     pub fn entropy_seed() -> u64 {
-        getrandom::u64().unwrap_or(0x6d69_7877_656c_6c21)
+        getrandom::u64().unwrap_or(0x6d69_7877_656c_6c21) >> 11
     }
 }
 

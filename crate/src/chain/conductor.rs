@@ -40,6 +40,11 @@ impl Tuning {
         methods
     }
 
+    /// The name of a method as written (`"bo"`, …), as a static string.
+    pub fn name_of(name: &str) -> Option<&'static str> {
+        ["none", "bo", "rm", "am"].into_iter().find(|n| *n == name)
+    }
+
     pub fn name(&self) -> &'static str {
         match self {
             Tuning::None => "none",
@@ -73,13 +78,47 @@ pub const MAX_DRAWS: usize = 10_000_000;
 pub const MAX_WARMUP: usize = 100_000_000;
 pub const MAX_PILOT: usize = 1_000_000;
 pub const MAX_ADAPT_STEPS: usize = 100_000_000;
+/// Largest seed: 2⁵³ − 1, so that a seed travels through JavaScript and JSON exactly.
+pub const MAX_SEED: u64 = (1 << 53) - 1;
 /// Most tuning trials, and fewest and most steps in one trial window.
 pub const MAX_TRIALS: usize = 10_000;
 pub const WINDOW_RANGE: (usize, usize) = (4, 100_000);
 
 impl RunConfig {
+    /// The usual run for a model with `dim` coordinates: four chains of 1,000 draws after 1,000
+    /// warm-up steps and a 200-sweep pilot, the default settings of kernel `kind` (`"rwm"` or
+    /// `"slice"`), tuned by `tune` (`"bo"`, `"rm"`, `"am"` or `"none"`) with the default budget.
+    pub fn default_for(kind: &str, tune: &str, dim: usize, seed: u64) -> Result<RunConfig, String> {
+        if kind != "rwm" && kind != "slice" {
+            return Err(format!("unknown sampler `{kind}`: use rwm or slice"));
+        }
+        let bo = BoConfig::default();
+        let steps = bo.trials * bo.window;
+        let tuning = match tune {
+            "bo" => Tuning::Bo(bo),
+            "rm" => Tuning::Rm { steps },
+            "am" => Tuning::Am { steps },
+            "none" => Tuning::None,
+            other => return Err(format!("unknown tuning method `{other}`: use bo, rm, am or none")),
+        };
+        let config = RunConfig {
+            chains: 4,
+            warmup: 1000,
+            draws: 1000,
+            seed,
+            pilot: 200,
+            settings: Settings::default_for(kind, dim),
+            tuning,
+        };
+        config.validate()?;
+        Ok(config)
+    }
+
     /// Why this configuration cannot run, if it cannot.
     pub fn validate(&self) -> Result<(), String> {
+        if self.seed > MAX_SEED {
+            return Err(format!("the seed must be at most 2^53 − 1 = {MAX_SEED}, not {}", self.seed));
+        }
         let within = |what: &str, value: usize, lo: usize, hi: usize| {
             if (lo..=hi).contains(&value) {
                 Ok(())

@@ -43,7 +43,7 @@ pub struct DensityArgs {
 }
 
 /// What fixes a run's draws; the same flags make a link.
-#[derive(Args, Debug, Default)]
+#[derive(Args, Clone, Debug, Default)]
 pub struct RunOptions {
     /// The kernel: random-walk Metropolis or slice sampling [default: rwm].
     #[arg(long, value_enum)]

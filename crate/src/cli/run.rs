@@ -49,7 +49,12 @@ pub fn run(args: &RunArgs) -> Result<String, Failure> {
     let (collected, report) = if args.compare {
         let bo = match &config.tuning {
             Tuning::Bo(bo) => bo.clone(),
-            _ => bo_config(&args.options),
+            _ => match build_config(&RunOptions { tune: Some(TuneMethod::Bo), ..args.options.clone() }, tape.dim())?
+                .tuning
+            {
+                Tuning::Bo(bo) => bo,
+                _ => BoConfig::default(),
+            },
         };
         let mut primary = None;
         let mut rows = Vec::new();
@@ -102,62 +107,68 @@ fn execute(tape: &Tape, config: RunConfig, bar: &Bar) -> Result<(Collected, f64)
     Ok((collected, seconds))
 }
 
-fn bo_config(options: &RunOptions) -> BoConfig {
-    let default = BoConfig::default();
-    BoConfig {
-        score: match options.score {
-            Some(ScoreKind::Acf) => Score::Acf,
-            Some(ScoreKind::EssPerEval) => Score::EssPerEval,
-            None => default.score,
-        },
-        trials: options.trials.unwrap_or(default.trials),
-        window: options.window.unwrap_or(default.window),
-        freeze: match options.freeze {
-            Some(FreezeKind::Best) => Freeze::Best,
-            Some(FreezeKind::Mixture) => Freeze::Mixture,
-            None => default.freeze,
-        },
-    }
-}
-
-/// Turn the run flags into a validated run configuration for a model with `dim` coordinates.
+/// Turn the run flags into a validated run configuration for a model with `dim` coordinates:
+/// the defaults of [`RunConfig::default_for`], overridden by what was given.
 pub fn build_config(options: &RunOptions, dim: usize) -> Result<RunConfig, Failure> {
-    let sampler = options.sampler.unwrap_or(SamplerKind::Rwm);
-    let (kind, other) = match sampler {
-        SamplerKind::Rwm => ("rwm", [("--width", options.width.is_some()), ("--stepout", options.stepout.is_some())]),
-        SamplerKind::Slice => ("slice", [("--scale", options.scale.is_some()), ("--blend", options.blend.is_some())]),
+    let kind = match options.sampler.unwrap_or(SamplerKind::Rwm) {
+        SamplerKind::Rwm => "rwm",
+        SamplerKind::Slice => "slice",
     };
-    if let Some((flag, _)) = other.iter().find(|(_, given)| *given) {
+    let not_for = if kind == "rwm" {
+        [("--width", options.width.is_some()), ("--stepout", options.stepout.is_some())]
+    } else {
+        [("--scale", options.scale.is_some()), ("--blend", options.blend.is_some())]
+    };
+    if let Some((flag, _)) = not_for.iter().find(|(_, given)| *given) {
         return Err(format!("{flag} does not apply to --sampler {kind}").into());
     }
     let given =
         options.scale.is_some() || options.blend.is_some() || options.width.is_some() || options.stepout.is_some();
-    let settings = match Settings::default_for(kind, dim) {
+    let tune = match options.tune {
+        Some(TuneMethod::Bo) => "bo",
+        Some(TuneMethod::Rm) => "rm",
+        Some(TuneMethod::Am) => "am",
+        Some(TuneMethod::None) => "none",
+        None if given => "none",
+        None => "bo",
+    };
+    let seed = options.seed.unwrap_or_else(Stream::entropy_seed);
+    let mut config = RunConfig::default_for(kind, tune, dim, seed)?;
+    match &mut config.settings {
         Settings::RandomWalk { scale, blend } => {
-            Settings::RandomWalk { scale: options.scale.unwrap_or(scale), blend: options.blend.unwrap_or(blend) }
+            *scale = options.scale.unwrap_or(*scale);
+            *blend = options.blend.unwrap_or(*blend);
         }
         Settings::Slice { width, stepout } => {
-            Settings::Slice { width: options.width.unwrap_or(width), stepout: options.stepout.unwrap_or(stepout) }
+            *width = options.width.unwrap_or(*width);
+            *stepout = options.stepout.unwrap_or(*stepout);
         }
-        other => other,
-    };
-    let bo = bo_config(options);
-    let budget = bo.trials.saturating_mul(bo.window);
-    let tuning = match options.tune.unwrap_or(if given { TuneMethod::None } else { TuneMethod::Bo }) {
-        TuneMethod::Bo => Tuning::Bo(bo),
-        TuneMethod::None => Tuning::None,
-        TuneMethod::Rm => Tuning::Rm { steps: budget },
-        TuneMethod::Am => Tuning::Am { steps: budget },
-    };
-    let config = RunConfig {
-        chains: options.chains.unwrap_or(4),
-        warmup: options.warmup.unwrap_or(1000),
-        draws: options.draws.unwrap_or(1000),
-        seed: options.seed.unwrap_or_else(Stream::entropy_seed),
-        pilot: options.pilot.unwrap_or(200),
-        settings,
-        tuning,
-    };
+        Settings::Mixture { .. } => {}
+    }
+    let default = BoConfig::default();
+    let (trials, window) = (options.trials.unwrap_or(default.trials), options.window.unwrap_or(default.window));
+    match &mut config.tuning {
+        Tuning::Bo(bo) => {
+            *bo = BoConfig {
+                score: match options.score {
+                    Some(ScoreKind::Acf) => Score::Acf,
+                    Some(ScoreKind::EssPerEval) | None => Score::EssPerEval,
+                },
+                trials,
+                window,
+                freeze: match options.freeze {
+                    Some(FreezeKind::Mixture) => Freeze::Mixture,
+                    Some(FreezeKind::Best) | None => Freeze::Best,
+                },
+            }
+        }
+        Tuning::Rm { steps } | Tuning::Am { steps } => *steps = trials.saturating_mul(window),
+        Tuning::None => {}
+    }
+    config.chains = options.chains.unwrap_or(config.chains);
+    config.warmup = options.warmup.unwrap_or(config.warmup);
+    config.draws = options.draws.unwrap_or(config.draws);
+    config.pilot = options.pilot.unwrap_or(config.pilot);
     config.validate()?;
     Ok(config)
 }

@@ -151,9 +151,9 @@ impl Report {
 }
 
 /// One method's line in a comparison: what it froze and what that bought.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, serde::Deserialize)]
 pub struct Comparison {
-    pub method: &'static str,
+    pub method: String,
     pub settings: Settings,
     /// Mean over chains.
     pub acceptance: f64,
@@ -172,7 +172,7 @@ impl Comparison {
     pub fn of(method: &'static str, report: &Report, sampling_seconds: f64) -> Comparison {
         let chains = report.chain_stats.len().max(1) as f64;
         Comparison {
-            method,
+            method: method.to_string(),
             settings: report.sampler.clone(),
             acceptance: report.chain_stats.iter().map(|c| c.acceptance).sum::<f64>() / chains,
             bulk_ess_per_eval: report.min_bulk_ess() / report.evaluations.sampling.max(1) as f64,

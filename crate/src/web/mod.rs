@@ -5,6 +5,10 @@
 //! because that is how JavaScript strings (and so the editor) count; rows and columns are 1-based,
 //! columns in characters, as the command line prints them.
 
+mod run;
+
+pub use run::{ChainEngine, RunEngine, comparison_configs, default_config, make_link, read_link};
+
 use crate::lang::{Diagnostic, Position};
 use crate::model::{self, ModelInfo};
 use serde::Serialize;
