@@ -1,7 +1,9 @@
 //! Black-box tests of the `mixwell` binary: exit statuses, positioned errors, and the commands'
 //! output on every example model.
 
+mod bad_inputs;
 mod commands;
+mod golden;
 mod malformed;
 
 use std::io::Write;

@@ -5,7 +5,7 @@
 use super::{mixwell, text};
 
 /// (model text, line, column, a fragment of the message).
-const CASES: &[(&str, usize, usize, &str)] = &[
+pub const CASES: &[(&str, usize, usize, &str)] = &[
     ("", 1, 1, "the model has no density"),
     ("mu : real\n", 2, 1, "the model has no density"),
     ("density = normal(1; 0, 1)\n", 1, 11, "does not depend on any parameter"),

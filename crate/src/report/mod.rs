@@ -116,7 +116,12 @@ impl Report {
                     100.0 * report.acceptance,
                     100.0 * ACCEPTANCE_BAND.0,
                     100.0 * ACCEPTANCE_BAND.1,
-                    if report.acceptance < ACCEPTANCE_BAND.0 { "large" } else { "small" }
+                    if report.acceptance < ACCEPTANCE_BAND.0 {
+                        "large"
+                    } else {
+                        "small — or the density is flat in some direction (an improper posterior: does every \
+                         parameter have a prior?)"
+                    }
                 ));
             }
         }
