@@ -70,3 +70,22 @@ fn density_refuses_bad_points() {
         assert!(text(&out.stderr).contains(fragment), "{at:?}: {}", text(&out.stderr));
     }
 }
+
+/// A link carries a whole run: opening it twice gives identical reports, and they equal the run
+/// made from the model file with the same options.
+#[test]
+fn the_same_link_gives_the_same_report() {
+    let bakery = format!("{}/../examples/bakery.mw", env!("CARGO_MANIFEST_DIR"));
+    let options = ["--seed", "99", "--trials", "8", "--window", "30", "--draws", "300", "--freeze", "mixture"];
+    let mut args = vec!["link", bakery.as_str()];
+    args.extend(options);
+    let link = text(&mixwell(&args, b"").stdout).trim().to_string();
+    assert!(link.starts_with("http://127.0.0.1:8000/#run=mw1."), "{link}");
+    let first = mixwell(&["run", "--link", &link, "--json", "-", "--quiet"], b"");
+    let second = mixwell(&["run", "--link", &link, "--json", "-", "--quiet"], b"");
+    assert_eq!(first.status.code(), Some(0), "{}", text(&first.stderr));
+    assert_eq!(first.stdout, second.stdout);
+    let mut args = vec!["run", bakery.as_str(), "--json", "-", "--quiet"];
+    args.extend(options);
+    assert_eq!(mixwell(&args, b"").stdout, first.stdout);
+}
