@@ -8,7 +8,8 @@ use super::{examples, mixwell, text};
 
 /// The run every golden case uses: short, tuned, two chains.
 pub const OPTIONS: &[&str] = &[
-    "--seed", "2026", "--chains", "2", "--pilot", "20", "--trials", "6", "--window", "20", "--warmup", "20", "--draws", "5",
+    "--seed", "2026", "--chains", "2", "--pilot", "20", "--trials", "6", "--window", "20", "--warmup", "20", "--draws",
+    "5",
 ];
 
 fn fixture_path() -> std::path::PathBuf {
@@ -21,7 +22,11 @@ fn golden_run(example: &std::path::Path) -> (String, String) {
     let mut args = vec!["link", path.as_ref()];
     args.extend(OPTIONS);
     let link = text(&mixwell(&args, b"").stdout).trim().to_string();
-    let csv = std::env::temp_dir().join(format!("mixwell-golden-{}-{}.csv", std::process::id(), example.display().to_string().len()));
+    let csv = std::env::temp_dir().join(format!(
+        "mixwell-golden-{}-{}.csv",
+        std::process::id(),
+        example.display().to_string().len()
+    ));
     let csv_arg = csv.to_string_lossy().into_owned();
     let out = mixwell(&["run", "--link", &link, "--csv", &csv_arg, "--quiet"], b"");
     assert_eq!(out.status.code(), Some(0), "{path}: {}", text(&out.stderr));
@@ -48,7 +53,8 @@ fn golden_runs_reproduce_bit_for_bit() {
         return;
     }
     let stored: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(fixture_path()).expect("tests/golden/draws.json exists")).expect("JSON");
+        serde_json::from_str(&std::fs::read_to_string(fixture_path()).expect("tests/golden/draws.json exists"))
+            .expect("JSON");
     for (name, run) in &runs {
         let expected = stored["runs"][name]["csv"].as_str().unwrap_or_else(|| panic!("no golden draws for {name}"));
         let got = run["csv"].as_str().expect("text");

@@ -184,7 +184,6 @@ fn stirling_remainder(x: f64) -> f64 {
 /// modified Lentz method (Lentz 1976; Thompson & Barnett 1986). Converges fast for
 /// x < (a + 1)/(a + b + 2), in about O(√max(a, b)) terms.
 fn beta_continued_fraction(a: f64, b: f64, x: f64) -> f64 {
-    const TINY: f64 = 1e-300;
     const MAX_TERMS: usize = 100_000;
     let (qab, qap, qam) = (a + b, a + 1.0, a - 1.0);
     let mut c = 1.0;
@@ -198,29 +197,9 @@ fn beta_continued_fraction(a: f64, b: f64, x: f64) -> f64 {
         let m = m as f64;
         let m2 = 2.0 * m;
         // Even step.
-        let aa = m * (b - m) * x / ((qam + m2) * (a + m2));
-        d = 1.0 + aa * d;
-        if d.abs() < TINY {
-            d = TINY;
-        }
-        c = 1.0 + aa / c;
-        if c.abs() < TINY {
-            c = TINY;
-        }
-        d = 1.0 / d;
-        h *= d * c;
+        h *= lentz_step(m * (b - m) * x / ((qam + m2) * (a + m2)), &mut c, &mut d);
         // Odd step.
-        let aa = -(a + m) * (qab + m) * x / ((a + m2) * (qap + m2));
-        d = 1.0 + aa * d;
-        if d.abs() < TINY {
-            d = TINY;
-        }
-        c = 1.0 + aa / c;
-        if c.abs() < TINY {
-            c = TINY;
-        }
-        d = 1.0 / d;
-        let delta = d * c;
+        let delta = lentz_step(-(a + m) * (qab + m) * x / ((a + m2) * (qap + m2)), &mut c, &mut d);
         h *= delta;
         if (delta - 1.0).abs() <= f64::EPSILON {
             break;
@@ -322,6 +301,24 @@ fn beta_quantile_start(a: f64, b: f64, q: f64) -> f64 {
         if q < t / w { libm::pow(a * w * q, 1.0 / a) } else { 1.0 - libm::pow(b * w * (1.0 - q), 1.0 / b) }
     };
     if x > 0.0 && x < 1.0 { x } else { 0.5 }
+}
+
+/// Smallest magnitude the Lentz ratios may take, so no division by zero occurs.
+const TINY: f64 = 1e-300;
+
+/// One step of the modified Lentz algorithm for a continued fraction with partial numerator
+/// `aa`: updates the running ratios `c` and `d` (kept away from zero) and returns the factor c·d.
+fn lentz_step(aa: f64, c: &mut f64, d: &mut f64) -> f64 {
+    *d = 1.0 + aa * *d;
+    if d.abs() < TINY {
+        *d = TINY;
+    }
+    *c = 1.0 + aa / *c;
+    if c.abs() < TINY {
+        *c = TINY;
+    }
+    *d = 1.0 / *d;
+    *d * *c
 }
 
 #[cfg(test)]

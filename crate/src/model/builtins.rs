@@ -148,7 +148,7 @@ pub fn logistic(x: f64) -> f64 {
 /// log logistic(x) = −log(1 + e⁻ˣ), accurate in both tails.
 #[inline]
 pub fn log_logistic(x: f64) -> f64 {
-    if x >= 0.0 { -libm::log1p(libm::exp(-x)) } else { x - libm::log1p(libm::exp(x)) }
+    -crate::dist::special::log1p_exp(-x)
 }
 
 /// log(eᵃ + eᵇ) without overflow.
