@@ -1,5 +1,10 @@
 //! The benchmark models, each as model text and as a hand-written log density on the
 //! unconstrained scale (Jacobian included). Data are simulated with a fixed seed.
+//!
+//! Shared by several bench targets, each of which uses only part of it.
+#![allow(dead_code)]
+
+pub mod targets;
 
 use mixwell::rng::Stream;
 use std::fmt::Write as _;
@@ -21,7 +26,7 @@ fn list(values: &[f64]) -> String {
 }
 
 pub fn all() -> Vec<Bench> {
-    vec![normal_1000(), logistic_500x5(), correlated_gaussian_10()]
+    vec![normal_1000(), logistic(500, "logistic regression, 500 rows × 5 predictors"), correlated_gaussian_10()]
 }
 
 /// mu ~ N(0, 10), sigma ~ half-normal(5), y_i ~ N(mu, sigma), i = 1..1000.
@@ -47,9 +52,10 @@ fn normal_1000() -> Bench {
     Bench { name: "normal, 1,000 data points", source, by_hand: Box::new(by_hand) }
 }
 
-/// Logistic regression: a ~ N(0, 2.5), b_j ~ N(0, 1), y_i ~ Bernoulli(logistic(a + x_i·b)).
-fn logistic_500x5() -> Bench {
-    let (n, k) = (500, 5);
+/// Logistic regression on `n` simulated rows of 5 predictors: a ~ N(0, 2.5), b_j ~ N(0, 1),
+/// y_i ~ Bernoulli(logistic(a + x_i·b)).
+pub fn logistic(n: usize, name: &'static str) -> Bench {
+    let k = 5;
     let mut rng = Stream::new(12, 0);
     let x: Vec<f64> = (0..n * k).map(|_| rng.normal()).collect();
     let truth = [0.5, -1.0, 0.25, 0.0, 2.0];
@@ -84,7 +90,7 @@ fn logistic_500x5() -> Bench {
         }
         lp
     };
-    Bench { name: "logistic regression, 500 rows × 5 predictors", source, by_hand: Box::new(by_hand) }
+    Bench { name, source, by_hand: Box::new(by_hand) }
 }
 
 /// x ~ N(0, Σ) in 10 dimensions with Σ_ij = 0.5^|i−j| · s_i s_j.
