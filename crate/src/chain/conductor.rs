@@ -92,7 +92,8 @@ impl RunConfig {
         if kind != "rwm" && kind != "slice" {
             return Err(format!("unknown sampler `{kind}`: use rwm or slice"));
         }
-        let bo = BoConfig::default();
+        let settings = Settings::default_for(kind, dim);
+        let bo = BoConfig { score: Score::default_for(&settings), ..BoConfig::default() };
         let steps = bo.trials * bo.window;
         let tuning = match tune {
             "bo" => Tuning::Bo(bo),
@@ -101,15 +102,7 @@ impl RunConfig {
             "none" => Tuning::None,
             other => return Err(format!("unknown tuning method `{other}`: use bo, rm, am or none")),
         };
-        let config = RunConfig {
-            chains: 4,
-            warmup: 1000,
-            draws: 1000,
-            seed,
-            pilot: 200,
-            settings: Settings::default_for(kind, dim),
-            tuning,
-        };
+        let config = RunConfig { chains: 4, warmup: 1000, draws: 1000, seed, pilot: 200, settings, tuning };
         config.validate()?;
         Ok(config)
     }
@@ -337,7 +330,7 @@ impl Conductor {
             Phase::TrialSetup => Phase::TrialRun,
             Phase::TrialRun => {
                 if let Some(tuner) = self.tuner.as_mut() {
-                    tuner.observe(&outcomes, self.dim);
+                    tuner.observe(&outcomes, &self.geometry);
                 }
                 Phase::TrialSetup
             }

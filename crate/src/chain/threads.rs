@@ -1,8 +1,10 @@
-//! Driving a run natively: each task goes to all chains at once, one thread per chain.
+//! Driving a run natively: one thread per chain for the whole run, each taking its tasks from a
+//! channel, so a task costs a message rather than a thread start.
 
 use super::conductor::{Collected, Conductor, Progress, RunConfig};
-use super::{Chain, Outcome};
+use super::{Chain, Outcome, Task};
 use crate::tape::Tape;
+use std::sync::{Arc, mpsc};
 
 /// A whole run: start the chains, drive them to the end, hand back the draws.
 pub fn run(tape: &Tape, config: RunConfig, progress: impl FnMut(&Progress)) -> Result<Collected, String> {
@@ -21,15 +23,39 @@ pub fn drive(
     mut progress: impl FnMut(&Progress),
     stop: impl Fn() -> bool,
 ) {
-    while let Some(task) = conductor.next_task() {
-        if stop() {
-            return;
+    std::thread::scope(|scope| {
+        let (answers, outcomes) = mpsc::channel::<Outcome>();
+        let tasks: Vec<mpsc::Sender<Arc<Task>>> = chains
+            .iter_mut()
+            .map(|chain| {
+                let (send, receive) = mpsc::channel::<Arc<Task>>();
+                let answers = answers.clone();
+                scope.spawn(move || {
+                    for task in receive {
+                        if answers.send(chain.perform(tape, &task)).is_err() {
+                            break;
+                        }
+                    }
+                });
+                send
+            })
+            .collect();
+        while let Some(task) = conductor.next_task() {
+            if stop() {
+                break;
+            }
+            let task = Arc::new(task);
+            for send in &tasks {
+                // A chain's thread only stops after a panic, which `scope` passes on.
+                let _ = send.send(Arc::clone(&task));
+            }
+            let collected: Vec<Outcome> = (0..tasks.len()).map_while(|_| outcomes.recv().ok()).collect();
+            if collected.len() < tasks.len() {
+                break; // a chain's thread died; `scope` reports its panic
+            }
+            conductor.absorb(collected);
+            progress(&conductor.progress());
         }
-        let outcomes: Vec<Outcome> = std::thread::scope(|scope| {
-            let running: Vec<_> = chains.iter_mut().map(|chain| scope.spawn(|| chain.perform(tape, &task))).collect();
-            running.into_iter().map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e))).collect()
-        });
-        conductor.absorb(outcomes);
-        progress(&conductor.progress());
-    }
+        drop(tasks);
+    });
 }

@@ -65,7 +65,7 @@ pub struct RunOptions {
     /// such as --scale or --width is given].
     #[arg(long, value_enum)]
     pub tune: Option<TuneMethod>,
-    /// What a tuning trial is judged by [default: ess-per-eval].
+    /// What a tuning trial is judged by [default: ess-per-eval for rwm, jump-per-eval for slice].
     #[arg(long, value_enum)]
     pub score: Option<ScoreKind>,
     /// Bayesian optimisation: number of trials [default: 100].
@@ -187,6 +187,7 @@ pub enum TuneMethod {
 pub enum ScoreKind {
     Acf,
     EssPerEval,
+    JumpPerEval,
 }
 
 #[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]

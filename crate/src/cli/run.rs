@@ -152,7 +152,9 @@ pub fn build_config(options: &RunOptions, dim: usize) -> Result<RunConfig, Failu
             *bo = BoConfig {
                 score: match options.score {
                     Some(ScoreKind::Acf) => Score::Acf,
-                    Some(ScoreKind::EssPerEval) | None => Score::EssPerEval,
+                    Some(ScoreKind::EssPerEval) => Score::EssPerEval,
+                    Some(ScoreKind::JumpPerEval) => Score::JumpPerEval,
+                    None => bo.score,
                 },
                 trials,
                 window,

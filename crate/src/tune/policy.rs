@@ -12,7 +12,7 @@ use super::gp::{self, FitSettings, Gp, Hyperparameters, Kernel as Covariance};
 use super::polish::{BoxSearch, compass_search, maximise_on_box};
 use super::score::Score;
 use crate::chain::Outcome;
-use crate::kernel::Settings;
+use crate::kernel::{Geometry, Settings};
 use crate::rng::Stream;
 use serde::{Deserialize, Serialize};
 
@@ -175,11 +175,11 @@ impl Tuner {
         Some(settings)
     }
 
-    /// Record the chains' outcomes of the trial last proposed (`dim` unconstrained coordinates
-    /// per recorded row) and refit the surrogate.
-    pub fn observe(&mut self, outcomes: &[Outcome], dim: usize) {
+    /// Record the chains' outcomes of the trial last proposed (rows of unconstrained
+    /// coordinates, scored against the pilot's `geometry`) and refit the surrogate.
+    pub fn observe(&mut self, outcomes: &[Outcome], geometry: &Geometry) {
         let Some(x) = self.pending.take() else { return };
-        let score = self.config.score.of(outcomes, dim);
+        let score = self.config.score.of(outcomes, geometry);
         let evaluations = outcomes.iter().map(|o| o.evaluations).sum();
         self.trials.push(Trial { settings: self.space.settings(&x), x, score, evaluations });
         if self.trials.len() >= self.design.len() {

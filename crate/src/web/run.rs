@@ -213,7 +213,10 @@ pub fn comparison_configs(config: JsValue) -> Result<JsValue, JsError> {
     let config: RunConfig = serde_wasm_bindgen::from_value(config)?;
     let bo = match &config.tuning {
         Tuning::Bo(bo) => bo.clone(),
-        _ => Default::default(),
+        _ => crate::tune::policy::BoConfig {
+            score: crate::tune::score::Score::default_for(&config.settings),
+            ..Default::default()
+        },
     };
     let runs: Vec<RunConfig> = Tuning::alternatives(&config.settings, &bo)
         .into_iter()
