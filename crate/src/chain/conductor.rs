@@ -9,8 +9,9 @@ use crate::tune::policy::{Axis, BoConfig, Space, Surrogate, Trial, Tuner};
 use crate::tune::score::Score;
 use serde::{Deserialize, Serialize};
 
-/// Steps per task while adapting, warming up and sampling: small enough for frequent progress
-/// reports and prompt cancelling, large enough that passing messages costs nothing.
+/// Steps per task while adapting, warming up and sampling, unless the driver sets another size:
+/// small enough for frequent progress reports and prompt cancelling in the page. How steps are cut
+/// into tasks never changes the draws (a chain simply continues).
 pub const CHUNK: usize = 250;
 
 /// How the kernel's settings are chosen before sampling.
@@ -224,6 +225,7 @@ pub struct Conductor {
     evaluations_before_sampling: u64,
     /// Steps asked for by the task in flight.
     in_flight: usize,
+    chunk: usize,
 }
 
 impl Conductor {
@@ -244,6 +246,7 @@ impl Conductor {
             stats: vec![ChainStats::default(); chains],
             evaluations_before_sampling: 0,
             in_flight: 0,
+            chunk: CHUNK,
             config,
         };
         if conductor.config.pilot == 0 {
@@ -268,9 +271,15 @@ impl Conductor {
         }
     }
 
+    /// Cut adaptation, warm-up and sampling into tasks of `steps` steps (at least 1).
+    pub fn set_chunk(&mut self, steps: usize) {
+        self.chunk = steps.max(1);
+    }
+
     /// The task every chain should do next, or `None` when the run is complete.
     pub fn next_task(&mut self) -> Option<Task> {
-        let chunk = |done: usize, total: usize| CHUNK.min(total - done);
+        let size = self.chunk;
+        let chunk = |done: usize, total: usize| size.min(total - done);
         let configure =
             |settings: Settings, geometry: &Geometry| Task::Configure { settings, geometry: geometry.clone() };
         let task = loop {

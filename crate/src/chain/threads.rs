@@ -5,6 +5,11 @@ use super::conductor::{Collected, Conductor, Progress, RunConfig};
 use super::{Chain, Outcome, Task};
 use crate::tape::Tape;
 use std::sync::{Arc, mpsc};
+use std::time::{Duration, Instant};
+
+/// Natively, tasks are sized to take about this long: long enough that handing them to threads
+/// costs nothing, short enough for a lively progress bar.
+const TASK_TIME: Duration = Duration::from_millis(50);
 
 /// A whole run: start the chains, drive them to the end, hand back the draws.
 pub fn run(tape: &Tape, config: RunConfig, progress: impl FnMut(&Progress)) -> Result<Collected, String> {
@@ -44,6 +49,11 @@ pub fn drive(
             if stop() {
                 break;
             }
+            let steps = match &task {
+                Task::Run { steps, .. } | Task::Adapt { steps, .. } => *steps,
+                _ => 0,
+            };
+            let started = Instant::now();
             let task = Arc::new(task);
             for send in &tasks {
                 // A chain's thread only stops after a panic, which `scope` passes on.
@@ -55,6 +65,10 @@ pub fn drive(
             }
             conductor.absorb(collected);
             progress(&conductor.progress());
+            if steps > 0 {
+                let per_step = started.elapsed().as_secs_f64() / steps as f64;
+                conductor.set_chunk((TASK_TIME.as_secs_f64() / per_step.max(1e-9)).clamp(50.0, 1e6) as usize);
+            }
         }
         drop(tasks);
     });
