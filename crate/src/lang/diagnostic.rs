@@ -101,11 +101,21 @@ impl Diagnostic {
     }
 }
 
+/// Names longer than this get no suggestion: nobody mistypes one, and the edit distance takes
+/// time and memory in proportion to the product of the two lengths.
+const MAX_SUGGESTED_CHARS: usize = 64;
+
 /// The closest of `candidates` to `name` by edit distance, if close enough to be a likely typo.
 pub fn did_you_mean<'a>(name: &str, candidates: impl IntoIterator<Item = &'a str>) -> Option<&'a str> {
-    let limit = (name.chars().count() / 3).max(1);
+    let chars = name.chars().count();
+    if chars > MAX_SUGGESTED_CHARS {
+        return None;
+    }
+    let limit = (chars / 3).max(1);
     candidates
         .into_iter()
+        // Lengths further apart than the limit are further apart in edit distance too.
+        .filter(|c| c.len() <= 4 * (chars + limit) && c.chars().count().abs_diff(chars) <= limit)
         .map(|c| (edit_distance(name, c), c))
         .filter(|&(d, _)| d <= limit)
         .min_by_key(|&(d, _)| d)
