@@ -10,6 +10,7 @@ pub mod diag;
 pub mod dist;
 pub mod kernel;
 pub mod lang;
+pub mod link;
 pub mod model;
 pub mod report;
 pub mod rng;

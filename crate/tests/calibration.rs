@@ -11,7 +11,7 @@
 mod common;
 
 use common::{compile, kernels};
-use mixwell::chain::conductor::RunConfig;
+use mixwell::chain::conductor::{RunConfig, Tuning};
 use mixwell::chain::threads;
 use mixwell::diag;
 use mixwell::kernel::Settings;
@@ -65,7 +65,15 @@ fn calibrate(mut posterior: impl FnMut(&Tape, u64) -> Vec<Vec<f64>>) -> ([f64; 3
 
 /// `KEPT` draws, one every `thin` steps after warm-up, from one chain of our sampler.
 fn thinned(tape: &Tape, settings: &Settings, thin: usize, seed: u64) -> Vec<Vec<f64>> {
-    let config = RunConfig { chains: 1, warmup: 300, draws: KEPT * thin, seed, pilot: 100, settings: settings.clone() };
+    let config = RunConfig {
+        chains: 1,
+        warmup: 300,
+        draws: KEPT * thin,
+        seed,
+        pilot: 100,
+        settings: settings.clone(),
+        tuning: Tuning::None,
+    };
     let collected = threads::run(tape, config, |_| {}).expect("chain starts");
     let width = tape.columns().len();
     collected.draws[0].chunks_exact(width).step_by(thin).map(<[f64]>::to_vec).collect()

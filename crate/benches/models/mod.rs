@@ -4,10 +4,13 @@
 use mixwell::rng::Stream;
 use std::fmt::Write as _;
 
+/// A log density written by hand, on the unconstrained scale.
+pub type Density = Box<dyn Fn(&[f64]) -> f64>;
+
 pub struct Bench {
     pub name: &'static str,
     pub source: String,
-    pub by_hand: Box<dyn Fn(&[f64]) -> f64>,
+    pub by_hand: Density,
 }
 
 const HALF_LN_2PI: f64 = 0.918_938_533_204_672_8;

@@ -8,7 +8,7 @@ pub mod conductor;
 #[cfg(not(target_arch = "wasm32"))]
 pub mod threads;
 
-use crate::kernel::{Geometry, Kernel, Settings, State};
+use crate::kernel::{Adapter, Geometry, Kernel, Scheme, Settings, State};
 use crate::rng::Stream;
 use crate::tape::Tape;
 use serde::{Deserialize, Serialize};
@@ -30,6 +30,9 @@ pub enum Task {
     Configure { settings: Settings, geometry: Geometry },
     /// Take `steps` steps with the current kernel, recording what `record` says.
     Run { steps: usize, record: Record },
+    /// Take `steps` steps of an adaptive random walk, continuing any adaptation under way;
+    /// answer with what it has learned (see [`Adapter::learned`]).
+    Adapt { scheme: Scheme, steps: usize },
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
@@ -61,6 +64,9 @@ pub struct Chain {
     rng: Stream,
     state: State,
     kernel: Option<Kernel>,
+    /// The geometry of the last configuration, which adaptation starts from.
+    geometry: Option<Geometry>,
+    adapter: Option<Adapter>,
 }
 
 impl Chain {
@@ -70,7 +76,7 @@ impl Chain {
         for _ in 0..START_ATTEMPTS {
             let theta = (0..tape.dim()).map(|_| START_BOX * (2.0 * rng.uniform() - 1.0)).collect();
             if let Some(state) = State::new(tape, theta) {
-                return Ok(Chain { index, rng, state, kernel: None });
+                return Ok(Chain { index, rng, state, kernel: None, geometry: None, adapter: None });
             }
         }
         Err(format!(
@@ -91,7 +97,17 @@ impl Chain {
             }
             Task::Configure { settings, geometry } => {
                 self.kernel = Some(Kernel::new(settings, geometry));
+                self.geometry = Some(geometry.clone());
                 0
+            }
+            Task::Adapt { scheme, steps } => {
+                let geometry = self.geometry.get_or_insert_with(|| Geometry::unit(tape.dim()));
+                let adapter = self.adapter.get_or_insert_with(|| Adapter::new(*scheme, geometry));
+                for _ in 0..*steps {
+                    adapter.step(tape, &mut self.state, &mut self.rng);
+                }
+                rows = adapter.learned();
+                *steps
             }
             Task::Run { steps, record } => {
                 self.run(tape, *steps, *record, &mut rows);

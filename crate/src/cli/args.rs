@@ -15,8 +15,10 @@ pub enum Command {
     Check(CheckArgs),
     /// Evaluate the log density at one point given on the constrained scale.
     Density(DensityArgs),
-    /// Sample a model with several chains and report diagnostics.
+    /// Tune a sampler, sample a model with several chains, and report diagnostics.
     Run(RunArgs),
+    /// Print a link that carries a model and a run, for the page or `mixwell run --link`.
+    Link(LinkArgs),
 }
 
 #[derive(Args, Debug)]
@@ -40,14 +42,12 @@ pub struct DensityArgs {
     pub json: bool,
 }
 
-#[derive(Args, Debug)]
-#[command(allow_negative_numbers = true)]
-pub struct RunArgs {
-    /// Model file, or `-` for standard input.
-    pub model: String,
-    /// The kernel: random-walk Metropolis or slice sampling.
-    #[arg(long, value_enum, default_value = "rwm")]
-    pub sampler: SamplerKind,
+/// What fixes a run's draws; the same flags make a link.
+#[derive(Args, Debug, Default)]
+pub struct RunOptions {
+    /// The kernel: random-walk Metropolis or slice sampling [default: rwm].
+    #[arg(long, value_enum)]
+    pub sampler: Option<SamplerKind>,
     /// Random-walk scale, multiplying the pilot's covariance factor [default: 2.38/√d].
     #[arg(long)]
     pub scale: Option<f64>,
@@ -60,21 +60,92 @@ pub struct RunArgs {
     /// Slice step-out limit, in widths [default: 20].
     #[arg(long)]
     pub stepout: Option<u32>,
-    /// Number of chains.
-    #[arg(long, default_value_t = 4)]
-    pub chains: usize,
-    /// Warm-up steps per chain, discarded.
-    #[arg(long, default_value_t = 1000)]
-    pub warmup: usize,
-    /// Draws per chain, kept.
-    #[arg(long, default_value_t = 1000)]
-    pub draws: usize,
-    /// Pilot sweeps per chain, used only to measure the target's scale.
-    #[arg(long, default_value_t = 200)]
-    pub pilot: usize,
+    /// How to choose the kernel's settings before sampling: Bayesian optimisation, Robbins–Monro
+    /// acceptance targeting, adaptive Metropolis, or none [default: bo, or none when a setting
+    /// such as --scale or --width is given].
+    #[arg(long, value_enum)]
+    pub tune: Option<TuneMethod>,
+    /// What a tuning trial is judged by [default: ess-per-eval].
+    #[arg(long, value_enum)]
+    pub score: Option<ScoreKind>,
+    /// Bayesian optimisation: number of trials [default: 100].
+    #[arg(long)]
+    pub trials: Option<usize>,
+    /// Bayesian optimisation: steps per chain in each trial [default: 100].
+    #[arg(long)]
+    pub window: Option<usize>,
+    /// After tuning: the single best setting, or a fixed mixture of good ones [default: best].
+    #[arg(long, value_enum)]
+    pub freeze: Option<FreezeKind>,
+    /// Number of chains [default: 4].
+    #[arg(long)]
+    pub chains: Option<usize>,
+    /// Warm-up steps per chain, discarded [default: 1000].
+    #[arg(long)]
+    pub warmup: Option<usize>,
+    /// Draws per chain, kept [default: 1000].
+    #[arg(long)]
+    pub draws: Option<usize>,
+    /// Pilot sweeps per chain, used only to measure the target's scale [default: 200].
+    #[arg(long)]
+    pub pilot: Option<usize>,
     /// Seed for every random number of the run [default: a fresh one, which is reported].
     #[arg(long)]
     pub seed: Option<u64>,
+}
+
+impl RunOptions {
+    /// Whether any option that changes the draws was given.
+    pub fn any(&self) -> bool {
+        let RunOptions {
+            sampler,
+            scale,
+            blend,
+            width,
+            stepout,
+            tune,
+            score,
+            trials,
+            window,
+            freeze,
+            chains,
+            warmup,
+            draws,
+            pilot,
+            seed,
+        } = self;
+        sampler.is_some()
+            || scale.is_some()
+            || blend.is_some()
+            || width.is_some()
+            || stepout.is_some()
+            || tune.is_some()
+            || score.is_some()
+            || trials.is_some()
+            || window.is_some()
+            || freeze.is_some()
+            || chains.is_some()
+            || warmup.is_some()
+            || draws.is_some()
+            || pilot.is_some()
+            || seed.is_some()
+    }
+}
+
+#[derive(Args, Debug)]
+#[command(allow_negative_numbers = true)]
+pub struct RunArgs {
+    /// Model file, or `-` for standard input (not needed with --link).
+    #[arg(required_unless_present = "link")]
+    pub model: Option<String>,
+    #[command(flatten)]
+    pub options: RunOptions,
+    /// Repeat the run a link carries (made by `mixwell link` or the page's share button).
+    #[arg(long, value_name = "URL", conflicts_with = "model")]
+    pub link: Option<String>,
+    /// Also run every other tuning method that applies, with the same budget, and compare them.
+    #[arg(long)]
+    pub compare: bool,
     /// Autocorrelation is reported for lags 0 to this.
     #[arg(long, default_value_t = 20)]
     pub lags: usize,
@@ -90,6 +161,38 @@ pub struct RunArgs {
     /// No progress bar.
     #[arg(long)]
     pub quiet: bool,
+}
+
+#[derive(Args, Debug)]
+#[command(allow_negative_numbers = true)]
+pub struct LinkArgs {
+    /// Model file, or `-` for standard input.
+    pub model: String,
+    #[command(flatten)]
+    pub options: RunOptions,
+    /// The address of the page the link opens.
+    #[arg(long, default_value = "http://127.0.0.1:8000/", value_name = "URL")]
+    pub page: String,
+}
+
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum TuneMethod {
+    Bo,
+    Rm,
+    Am,
+    None,
+}
+
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ScoreKind {
+    Acf,
+    EssPerEval,
+}
+
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum FreezeKind {
+    Best,
+    Mixture,
 }
 
 #[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]

@@ -6,6 +6,7 @@
 mod args;
 mod check;
 mod density;
+mod link;
 mod run;
 
 use std::process::ExitCode;
@@ -32,6 +33,7 @@ pub fn main() -> ExitCode {
         args::Command::Check(a) => check::run(&a),
         args::Command::Density(a) => density::run(&a),
         args::Command::Run(a) => run::run(&a),
+        args::Command::Link(a) => link::run(&a),
     };
     match result {
         Ok(output) => {

@@ -1,28 +1,77 @@
-//! `mixwell run`: sample, then print the summary and write the report and draws.
+//! `mixwell run`: tune, sample, then print the summary and write the report and draws.
 
-use super::args::{RunArgs, SamplerKind};
+use super::args::{FreezeKind, RunArgs, RunOptions, SamplerKind, ScoreKind, TuneMethod};
 use super::{Failure, load};
-use crate::chain::conductor::RunConfig;
+use crate::chain::conductor::{Collected, Progress, RunConfig, Tuning};
 use crate::chain::threads;
 use crate::kernel::Settings;
-use crate::report::{self, Report};
+use crate::report::{self, Comparison, Report};
 use crate::rng::Stream;
 use crate::tape::Tape;
+use crate::tune::policy::{BoConfig, Freeze};
+use crate::tune::score::Score;
 use std::io::IsTerminal;
-
-/// Most chains a run may have.
-pub const MAX_CHAINS: usize = 64;
-/// Fewest draws per chain: split R-hat needs two halves of at least two.
-pub const MIN_DRAWS: usize = 4;
+use std::time::Instant;
 
 pub fn run(args: &RunArgs) -> Result<String, Failure> {
-    let (name, _, model) = load(&args.model)?;
-    let tape = Tape::new(&model);
-    let config = config(args, tape.dim(), tape.columns().len())?;
+    let (name, tape, config) = match &args.link {
+        Some(link) => {
+            if args.options.any() {
+                return Err("--link fixes the whole run: drop the other run options (--seed, --draws, …)".into());
+            }
+            let shared = crate::link::decode(link)?;
+            let model = crate::model::check(&shared.model).map_err(|d| Failure(d.render("<link>", &shared.model)))?;
+            ("<link>".to_string(), Tape::new(&model), shared.run)
+        }
+        None => {
+            let (name, _, model) = load(args.model.as_deref().unwrap_or("-"))?;
+            let tape = Tape::new(&model);
+            let config = build_config(&args.options, tape.dim())?;
+            (name, tape, config)
+        }
+    };
+    if !(args.max_memory.is_finite() && args.max_memory > 0.0) {
+        return Err(format!("--max-memory must be a positive number of GiB, not {}", args.max_memory).into());
+    }
+    let gib = config.draw_bytes(tape.columns().len()) / (1u64 << 30) as f64;
+    if gib > args.max_memory {
+        return Err(format!(
+            "this run would need about {gib:.1} GiB for its draws ({} chains × {} draws × {} values), more than \
+             --max-memory {}; raise --max-memory if you mean it",
+            config.chains,
+            config.draws,
+            tape.columns().len(),
+            args.max_memory
+        )
+        .into());
+    }
     let bar = progress_bar(args.quiet);
-    let collected = threads::run(&tape, config, |p| bar.show(p.phase, p.done, p.total))?;
+    let (collected, report) = if args.compare {
+        let bo = match &config.tuning {
+            Tuning::Bo(bo) => bo.clone(),
+            _ => bo_config(&args.options),
+        };
+        let mut primary = None;
+        let mut rows = Vec::new();
+        for method in Tuning::alternatives(&config.settings, &bo) {
+            let name = method.name();
+            let chosen = name == config.tuning.name();
+            let (collected, seconds) = execute(&tape, RunConfig { tuning: method, ..config.clone() }, &bar)?;
+            let report = Report::new(&collected, tape.columns(), tape.dim(), args.lags);
+            rows.push(Comparison::of(name, &report, seconds));
+            if chosen {
+                primary = Some((collected, report));
+            }
+        }
+        let (collected, mut report) = primary.ok_or("--compare: the chosen method does not apply")?;
+        report.comparison = Some(rows);
+        (collected, report)
+    } else {
+        let (collected, _) = execute(&tape, config, &bar)?;
+        let report = Report::new(&collected, tape.columns(), tape.dim(), args.lags);
+        (collected, report)
+    };
     bar.finish();
-    let report = Report::new(&collected, tape.columns(), tape.dim(), args.lags);
     if let Some(path) = &args.csv {
         std::fs::write(path, report::csv(&collected, tape.columns()))
             .map_err(|e| format!("cannot write `{path}`: {e}"))?;
@@ -38,50 +87,79 @@ pub fn run(args: &RunArgs) -> Result<String, Failure> {
     }
 }
 
-/// Turn the flags into a run configuration, refusing what cannot work.
-fn config(args: &RunArgs, dim: usize, columns: usize) -> Result<RunConfig, Failure> {
-    if args.chains == 0 || args.chains > MAX_CHAINS {
-        return Err(format!("--chains must be from 1 to {MAX_CHAINS}, not {}", args.chains).into());
+/// One run, and the seconds its sampling phase took (wall clock).
+fn execute(tape: &Tape, config: RunConfig, bar: &Bar) -> Result<(Collected, f64), Failure> {
+    let mut sampling_started: Option<Instant> = None;
+    let mut seconds = 0.0;
+    let collected = threads::run(tape, config, |p: &Progress| {
+        bar.show(p.phase, p.done, p.total);
+        match p.phase {
+            "sampling" if sampling_started.is_none() => sampling_started = Some(Instant::now()),
+            "done" => seconds = sampling_started.map_or(0.0, |t| t.elapsed().as_secs_f64()),
+            _ => {}
+        }
+    })?;
+    Ok((collected, seconds))
+}
+
+fn bo_config(options: &RunOptions) -> BoConfig {
+    let default = BoConfig::default();
+    BoConfig {
+        score: match options.score {
+            Some(ScoreKind::Acf) => Score::Acf,
+            Some(ScoreKind::EssPerEval) => Score::EssPerEval,
+            None => default.score,
+        },
+        trials: options.trials.unwrap_or(default.trials),
+        window: options.window.unwrap_or(default.window),
+        freeze: match options.freeze {
+            Some(FreezeKind::Best) => Freeze::Best,
+            Some(FreezeKind::Mixture) => Freeze::Mixture,
+            None => default.freeze,
+        },
     }
-    if args.draws < MIN_DRAWS {
-        return Err(format!("--draws must be at least {MIN_DRAWS} per chain, not {}", args.draws).into());
-    }
-    // Draws are held once as rows and once more, column by column, while summarising.
-    let bytes = 2.0 * 8.0 * args.draws as f64 * args.chains as f64 * columns as f64;
-    let gib = bytes / (1u64 << 30) as f64;
-    if gib > args.max_memory {
-        return Err(format!(
-            "this run would need about {gib:.1} GiB for its draws ({} chains × {} draws × {columns} values), more than \
-             --max-memory {}; raise --max-memory if you mean it",
-            args.chains, args.draws, args.max_memory
-        )
-        .into());
-    }
-    let (kind, other) = match args.sampler {
-        SamplerKind::Rwm => ("rwm", [("--width", args.width.is_some()), ("--stepout", args.stepout.is_some())]),
-        SamplerKind::Slice => ("slice", [("--scale", args.scale.is_some()), ("--blend", args.blend.is_some())]),
+}
+
+/// Turn the run flags into a validated run configuration for a model with `dim` coordinates.
+pub fn build_config(options: &RunOptions, dim: usize) -> Result<RunConfig, Failure> {
+    let sampler = options.sampler.unwrap_or(SamplerKind::Rwm);
+    let (kind, other) = match sampler {
+        SamplerKind::Rwm => ("rwm", [("--width", options.width.is_some()), ("--stepout", options.stepout.is_some())]),
+        SamplerKind::Slice => ("slice", [("--scale", options.scale.is_some()), ("--blend", options.blend.is_some())]),
     };
     if let Some((flag, _)) = other.iter().find(|(_, given)| *given) {
         return Err(format!("{flag} does not apply to --sampler {kind}").into());
     }
+    let given =
+        options.scale.is_some() || options.blend.is_some() || options.width.is_some() || options.stepout.is_some();
     let settings = match Settings::default_for(kind, dim) {
         Settings::RandomWalk { scale, blend } => {
-            Settings::RandomWalk { scale: args.scale.unwrap_or(scale), blend: args.blend.unwrap_or(blend) }
+            Settings::RandomWalk { scale: options.scale.unwrap_or(scale), blend: options.blend.unwrap_or(blend) }
         }
         Settings::Slice { width, stepout } => {
-            Settings::Slice { width: args.width.unwrap_or(width), stepout: args.stepout.unwrap_or(stepout) }
+            Settings::Slice { width: options.width.unwrap_or(width), stepout: options.stepout.unwrap_or(stepout) }
         }
         other => other,
     };
-    settings.validate()?;
-    Ok(RunConfig {
-        chains: args.chains,
-        warmup: args.warmup,
-        draws: args.draws,
-        seed: args.seed.unwrap_or_else(Stream::entropy_seed),
-        pilot: args.pilot,
+    let bo = bo_config(options);
+    let budget = bo.trials.saturating_mul(bo.window);
+    let tuning = match options.tune.unwrap_or(if given { TuneMethod::None } else { TuneMethod::Bo }) {
+        TuneMethod::Bo => Tuning::Bo(bo),
+        TuneMethod::None => Tuning::None,
+        TuneMethod::Rm => Tuning::Rm { steps: budget },
+        TuneMethod::Am => Tuning::Am { steps: budget },
+    };
+    let config = RunConfig {
+        chains: options.chains.unwrap_or(4),
+        warmup: options.warmup.unwrap_or(1000),
+        draws: options.draws.unwrap_or(1000),
+        seed: options.seed.unwrap_or_else(Stream::entropy_seed),
+        pilot: options.pilot.unwrap_or(200),
         settings,
-    })
+        tuning,
+    };
+    config.validate()?;
+    Ok(config)
 }
 
 /// A progress bar on standard error, shown only when it is a terminal.
@@ -92,7 +170,7 @@ fn progress_bar(quiet: bool) -> Bar {
         return Bar(None);
     }
     let bar = indicatif::ProgressBar::new(0);
-    if let Ok(style) = indicatif::ProgressStyle::with_template("{msg:>9} [{bar:40}] {pos}/{len} steps per chain") {
+    if let Ok(style) = indicatif::ProgressStyle::with_template("{msg:>9} [{bar:40}] {pos}/{len}") {
         bar.set_style(style.progress_chars("=> "));
     }
     Bar(Some(bar))

@@ -47,7 +47,7 @@ pub(crate) fn combined_autocorrelation(draws: &Draws, max_lag: usize) -> Vec<f64
 ///    formula of the paper: antithetic chains may give ESS > MN, but at most MN·log10(MN));
 /// 5. ESS = MN/τ̂.
 ///
-/// NaN when N < 2 or nothing moved (var⁺ = 0).
+/// NaN when N < 2, nothing moved (var⁺ = 0) or the autocovariances overflow.
 pub(crate) fn effective_sample_size(draws: &Draws) -> f64 {
     let (m, n) = (draws.chains, draws.len);
     if n < 2 || m == 0 {
@@ -72,7 +72,8 @@ pub(crate) fn effective_sample_size(draws: &Draws) -> f64 {
     }
     let total = (m * n) as f64;
     let tau = -1.0 + 2.0 * sum;
-    if tau.is_nan() {
+    // Not finite when the autocovariances overflowed (draws near 1e154): no estimate.
+    if !tau.is_finite() {
         return f64::NAN;
     }
     let tau_floor = 1.0 / libm::log10(total);

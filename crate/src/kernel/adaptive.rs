@@ -110,12 +110,13 @@ impl Adapter {
         for (m, dl) in self.mean.iter_mut().zip(&delta) {
             *m += dl / n;
         }
-        for i in 0..d {
-            for j in 0..=i {
-                self.scatter[i * d + j] += delta[i] * (x[j] - self.mean[j]);
+        for (i, di) in delta.iter().enumerate() {
+            let row = &mut self.scatter[i * d..i * d + i + 1];
+            for ((s, xj), mj) in row.iter_mut().zip(x).zip(&self.mean) {
+                *s += di * (xj - mj);
             }
         }
-        if self.steps > self.initial_period && self.steps % AM_REFRESH == 0 {
+        if self.steps > self.initial_period && self.steps.is_multiple_of(AM_REFRESH) {
             self.factor = lower_factor(&self.covariance(), d);
         }
     }

@@ -52,7 +52,9 @@ impl Settings {
     /// A short human description, e.g. "random-walk Metropolis, scale 0.84, blend 1".
     pub fn describe(&self) -> String {
         match self {
-            Settings::RandomWalk { scale, blend } => format!("random-walk Metropolis, scale {scale:.4}, blend {blend}"),
+            Settings::RandomWalk { scale, blend } => {
+                format!("random-walk Metropolis, scale {scale:.4}, blend {blend:.3}")
+            }
             Settings::Slice { width, stepout } => {
                 format!("slice sampling, width {width:.4} sd, step-out limit {stepout}")
             }

@@ -118,7 +118,8 @@ pub fn did_you_mean<'a>(name: &str, candidates: impl IntoIterator<Item = &'a str
         .filter(|c| c.len() <= 4 * (chars + limit) && c.chars().count().abs_diff(chars) <= limit)
         .map(|c| (edit_distance(name, c), c))
         .filter(|&(d, _)| d <= limit)
-        .min_by_key(|&(d, _)| d)
+        // Ties go to the alphabetically first, so the hint does not depend on hash order.
+        .min()
         .map(|(_, c)| c)
 }
 

@@ -46,6 +46,11 @@ impl Shape {
         }
     }
 
+    /// Never true: every shape holds at least one element (empty lists are refused).
+    pub fn is_empty(self) -> bool {
+        self.len() == 0
+    }
+
     /// `[]`, `[n]` or `[rows, columns]`.
     pub fn dims(self) -> Vec<usize> {
         match self {

@@ -8,7 +8,7 @@ mod text;
 
 pub use text::table;
 
-use crate::chain::conductor::Collected;
+use crate::chain::conductor::{Collected, TuningRecord};
 use crate::diag::{self, Summary};
 use crate::kernel::Settings;
 use serde::Serialize;
@@ -29,7 +29,13 @@ pub struct Report {
     pub chains: usize,
     pub warmup: usize,
     pub draws: usize,
+    /// The kernel that made the draws (after tuning, the frozen one).
     pub sampler: Settings,
+    pub tuning: Option<TuningRecord>,
+    /// Present when methods were compared (`--compare`).
+    pub comparison: Option<Vec<Comparison>>,
+    /// False when the run was stopped before all draws were made.
+    pub complete: bool,
     pub parameters: Vec<Quantity>,
     pub derived: Vec<Quantity>,
     pub chain_stats: Vec<ChainReport>,
@@ -99,7 +105,7 @@ impl Report {
                      or the density is zero or undefined around where the chain stands.",
                     report.chain
                 ));
-            } else if matches!(config.settings, Settings::RandomWalk { .. })
+            } else if matches!(collected.settings, Settings::RandomWalk { .. })
                 && !(ACCEPTANCE_BAND.0..=ACCEPTANCE_BAND.1).contains(&report.acceptance)
             {
                 warnings.push(format!(
@@ -122,7 +128,10 @@ impl Report {
             chains: config.chains,
             warmup: config.warmup,
             draws: config.draws,
-            sampler: config.settings.clone(),
+            sampler: collected.settings.clone(),
+            tuning: collected.tuning.clone(),
+            comparison: None,
+            complete: collected.complete,
             parameters: quantities,
             derived,
             chain_stats,
@@ -132,6 +141,44 @@ impl Report {
             },
             warnings,
             caution: CAUTION,
+        }
+    }
+
+    /// The smallest bulk-ESS over the parameters.
+    pub fn min_bulk_ess(&self) -> f64 {
+        self.parameters.iter().map(|q| q.summary.bulk_ess).fold(f64::INFINITY, f64::min)
+    }
+}
+
+/// One method's line in a comparison: what it froze and what that bought.
+#[derive(Clone, Debug, Serialize)]
+pub struct Comparison {
+    pub method: &'static str,
+    pub settings: Settings,
+    /// Mean over chains.
+    pub acceptance: f64,
+    /// Smallest bulk-ESS over the parameters per density evaluation while sampling.
+    pub bulk_ess_per_eval: f64,
+    /// Smallest bulk-ESS over the parameters per second of sampling (wall clock; varies
+    /// between machines and runs).
+    pub min_bulk_ess_per_second: f64,
+    /// Largest R-hat over the parameters.
+    pub rhat: f64,
+    /// Density evaluations spent tuning (all chains).
+    pub tuning_evaluations: u64,
+}
+
+impl Comparison {
+    pub fn of(method: &'static str, report: &Report, sampling_seconds: f64) -> Comparison {
+        let chains = report.chain_stats.len().max(1) as f64;
+        Comparison {
+            method,
+            settings: report.sampler.clone(),
+            acceptance: report.chain_stats.iter().map(|c| c.acceptance).sum::<f64>() / chains,
+            bulk_ess_per_eval: report.min_bulk_ess() / report.evaluations.sampling.max(1) as f64,
+            min_bulk_ess_per_second: report.min_bulk_ess() / sampling_seconds.max(1e-9),
+            rhat: report.parameters.iter().map(|q| q.summary.rhat).fold(f64::NEG_INFINITY, f64::max),
+            tuning_evaluations: report.tuning.as_ref().map_or(0, |t| t.evaluations),
         }
     }
 }

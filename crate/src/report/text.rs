@@ -23,6 +23,15 @@ pub fn significant(value: f64, digits: usize) -> String {
 pub fn table(report: &Report, title: &str) -> String {
     let mut out = String::new();
     let _ = writeln!(out, "{title} — {}", report.sampler.describe());
+    if let Some(t) = &report.tuning {
+        let _ = writeln!(
+            out,
+            "kernel chosen by {} ({} trials, {} density evaluations spent tuning)",
+            method_name(t.method),
+            t.trials.len(),
+            t.evaluations
+        );
+    }
     let _ = writeln!(
         out,
         "{} chains × {} draws after {} warm-up, seed {}; {} density evaluations while sampling\n",
@@ -60,7 +69,25 @@ pub fn table(report: &Report, title: &str) -> String {
     for c in &report.chain_stats {
         let _ = writeln!(out, "{:>5}  {:>10.3}  {:>20.2}", c.chain, c.acceptance, c.evals_per_draw);
     }
+    if let Some(rows) = &report.comparison {
+        let _ = writeln!(out, "\nmethod  acceptance  min bulk-ESS per eval  per second   max R-hat  settings");
+        for c in rows {
+            let _ = writeln!(
+                out,
+                "{:<6}  {:>10.3}  {:>21}  {:>10}  {:>10.3}  {}",
+                c.method,
+                c.acceptance,
+                significant(c.bulk_ess_per_eval, 3),
+                significant(c.min_bulk_ess_per_second, 3),
+                c.rhat,
+                c.settings.describe()
+            );
+        }
+    }
     out.push('\n');
+    if !report.complete {
+        let _ = writeln!(out, "The run was stopped early: these figures use only the draws made so far.");
+    }
     if report.warnings.is_empty() {
         let _ = writeln!(out, "No warnings.");
     } else {
@@ -71,6 +98,17 @@ pub fn table(report: &Report, title: &str) -> String {
     }
     let _ = writeln!(out, "{}", super::CAUTION);
     out
+}
+
+/// The tuning methods in words.
+pub fn method_name(method: &str) -> &'static str {
+    match method {
+        "bo" => "Bayesian optimisation",
+        "rm" => "Robbins–Monro acceptance targeting",
+        "am" => "adaptive Metropolis",
+        "none" => "no tuning (the given setting)",
+        _ => "an unknown method",
+    }
 }
 
 #[cfg(test)]

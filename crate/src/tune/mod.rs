@@ -12,4 +12,6 @@
 pub mod acquisition;
 pub mod direct;
 pub mod gp;
+pub mod policy;
 pub mod polish;
+pub mod score;

@@ -1,7 +1,7 @@
 //! Helpers shared by the statistical tests: compile a model, run chains, pull out one column.
 #![allow(dead_code)]
 
-use mixwell::chain::conductor::{Collected, RunConfig};
+use mixwell::chain::conductor::{Collected, RunConfig, Tuning};
 use mixwell::chain::threads;
 use mixwell::kernel::Settings;
 use mixwell::model::check;
@@ -12,7 +12,7 @@ pub fn compile(source: &str) -> Tape {
 }
 
 pub fn sample(tape: &Tape, settings: Settings, chains: usize, warmup: usize, draws: usize, seed: u64) -> Collected {
-    let config = RunConfig { chains, warmup, draws, seed, pilot: 200, settings };
+    let config = RunConfig { chains, warmup, draws, seed, pilot: 200, settings, tuning: Tuning::None };
     threads::run(tape, config, |_| {}).expect("chains start")
 }
 

@@ -1,0 +1,122 @@
+// Helpers for the browser tests: a fresh headless Debian Chromium per test (never a downloaded
+// browser), with every console message, page error and request watched. A test fails on any
+// console error or warning, any uncaught error, any failed or non-2xx request, and any request
+// outside the page's own origin (the page must load nothing from elsewhere).
+import { chromium } from 'playwright-core';
+import { mkdtemp, rm } from 'node:fs/promises';
+import { mkdirSync, readFileSync, readdirSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+export const ROOT = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
+export const ARTIFACTS = join(ROOT, 'tests', 'artifacts');
+
+export const BASE_URL = process.env.MIXWELL_PAGE_URL;
+if (!BASE_URL) throw new Error('MIXWELL_PAGE_URL is not set; run the browser tests through tests/browser/run.mjs');
+
+// Flags per shared/TOOLCHAIN.md: without the networking ones Chromium keeps trying to reach
+// outside hosts, which this network refuses.
+const CHROMIUM_ARGS = [
+  '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
+  '--disable-background-networking', '--disable-component-update', '--disable-sync',
+];
+
+/** The example files as the build reads them: sorted by file name, with their text. */
+export function exampleFiles() {
+  const dir = join(ROOT, 'examples');
+  return readdirSync(dir).filter((f) => f.endsWith('.mw')).sort()
+    .map((file) => ({ file, source: readFileSync(join(dir, file), 'utf8') }));
+}
+
+/** The crate's version, read from crate/Cargo.toml. */
+export function crateVersion() {
+  const toml = readFileSync(join(ROOT, 'crate', 'Cargo.toml'), 'utf8');
+  return toml.match(/^version\s*=\s*"([^"]+)"/m)[1];
+}
+
+/** Open the page in a new browser with an empty profile. Call `close()` at the end of the test. */
+export async function openPage({ viewport = { width: 1280, height: 800 } } = {}) {
+  const profile = await mkdtemp(join(tmpdir(), 'mixwell-browser-'));
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: '/usr/bin/chromium',
+    headless: true,
+    args: CHROMIUM_ARGS,
+    viewport,
+  });
+  const messages = [];
+  const problems = [];
+  const note = (line, isProblem) => {
+    messages.push(line);
+    if (isProblem) problems.push(line);
+  };
+  const watchConsole = (where) => (message) => {
+    const type = message.type();
+    note(`[${where} ${type}] ${message.text()}`, type === 'error' || type === 'warning');
+  };
+  const origin = new URL(BASE_URL).origin;
+  context.on('request', (request) => {
+    const url = request.url();
+    if (url.startsWith('data:') || url.startsWith('blob:')) return;
+    note(`[request] ${url}`, new URL(url).origin !== origin);
+  });
+  context.on('requestfailed', (request) => note(`[request failed] ${request.url()}: ${request.failure()?.errorText}`, true));
+  context.on('response', (response) => {
+    if (response.status() >= 400) note(`[response ${response.status()}] ${response.url()}`, true);
+  });
+  const page = context.pages()[0] ?? (await context.newPage());
+  page.on('console', watchConsole('page'));
+  page.on('pageerror', (error) => note(`[page error] ${error.message}`, true));
+  page.on('worker', (worker) => worker.on('console', watchConsole('worker')));
+
+  const explain = () => `\n--- browser messages ---\n${messages.join('\n') || '(none)'}\n---`;
+  return {
+    page,
+    /** Wait for `predicate` to hold in the page; on a timeout say what the browser said. */
+    async waitFor(description, predicate, arg, timeout = 15_000) {
+      try {
+        return await page.waitForFunction(predicate, arg, { timeout });
+      } catch (error) {
+        throw new Error(`timed out waiting for ${description}: ${error.message.split('\n')[0]}${explain()}`);
+      }
+    },
+    async screenshot(name) {
+      mkdirSync(ARTIFACTS, { recursive: true });
+      await page.screenshot({ path: join(ARTIFACTS, `${name}.png`) });
+    },
+    /** Close the browser; throws when anything went wrong in the page. */
+    async close() {
+      await context.close();
+      await rm(profile, { recursive: true, force: true });
+      if (problems.length > 0) throw new Error(`the page reported problems:\n${problems.join('\n')}${explain()}`);
+    },
+  };
+}
+
+/** Open the page and wait until the engine has checked the text in the editor. */
+export async function openChecked(options) {
+  const session = await openPage(options);
+  try {
+    await session.page.goto(BASE_URL);
+    await session.waitFor('the first check of the model', () => {
+      const state = document.getElementById('check-status')?.dataset.state;
+      return state === 'ok' || state === 'error';
+    });
+  } catch (error) {
+    await session.close().catch(() => {});
+    throw error;
+  }
+  return session;
+}
+
+/** The text in the editor, line by line as CodeMirror shows it. */
+export function editorText(page) {
+  return page.$$eval('.cm-content .cm-line', (lines) => lines.map((line) => line.textContent).join('\n'));
+}
+
+/** Replace everything in the editor by typing (pasting) `text`, as a user would. */
+export async function replaceEditorText(page, text) {
+  await page.click('.cm-content');
+  await page.keyboard.press('Control+A');
+  await page.keyboard.insertText(text);
+}
