@@ -35,6 +35,8 @@ struct Checker<'s> {
     constants: Vec<Constant>,
     derived: Vec<Derived>,
     mvnormals: Vec<MvNormal>,
+    /// The factorised covariance (index into `mvnormals`) of each constant used as one.
+    factorised: HashMap<usize, usize>,
     dim: usize,
     /// Numbers held as data so far, against [`MAX_DATA`].
     data: usize,
@@ -58,6 +60,7 @@ impl<'s> Checker<'s> {
             constants: Vec::new(),
             derived: Vec::new(),
             mvnormals: Vec::new(),
+            factorised: HashMap::new(),
             dim: 0,
             data: 0,
             work: 0,
@@ -420,6 +423,13 @@ impl<'s> Checker<'s> {
             }
             return self.constant(Shape::Vector(values.len()), values, span);
         }
+        // So do matrices of plain numbers: one constant, not one per row and then the matrix.
+        if let Some((rows, columns, values)) = literal_matrix(items) {
+            if rows.checked_mul(columns).is_none_or(|n| n > MAX_LENGTH) {
+                return Err(too_long());
+            }
+            return self.constant(Shape::Matrix(rows, columns), values, span);
+        }
         let nodes = items.iter().map(|item| self.expr(item)).collect::<Result<Vec<_>, _>>()?;
         let shape = match nodes[0].shape {
             Shape::Scalar => Shape::Vector(nodes.len()),
@@ -720,16 +730,53 @@ impl<'s> Checker<'s> {
             return Err(Diagnostic::new("the covariance of `mvnormal` must be data", args[1].span)
                 .expected("a matrix known before sampling"));
         }
-        // Its factor is kept as data; count it before the cubic-time factorisation.
-        self.hold_data(d * d, args[1].span)?;
-        let values = self.evaluate(&cov);
-        let dist =
-            MvNormal::new(&values, d).map_err(|why| Diagnostic::new(format!("this covariance {why}"), args[1].span))?;
-        self.mvnormals.push(dist);
+        // Factorising takes time cubic in d: once per named covariance, however often it is used.
+        let named = match cov.kind {
+            NodeKind::Constant(i) => Some(i),
+            _ => None,
+        };
+        let index = match named.and_then(|i| self.factorised.get(&i)) {
+            Some(&index) => index,
+            None => {
+                // The factor is kept as data; count it before factorising.
+                self.hold_data(d * d, args[1].span)?;
+                let values = self.evaluate(&cov);
+                let dist = MvNormal::new(&values, d)
+                    .map_err(|why| Diagnostic::new(format!("this covariance {why}"), args[1].span))?;
+                self.mvnormals.push(dist);
+                let index = self.mvnormals.len() - 1;
+                if let Some(i) = named {
+                    self.factorised.insert(i, index);
+                }
+                index
+            }
+        };
         let constant = x.constant && mean.constant;
-        let kind = NodeKind::MvNormal { index: self.mvnormals.len() - 1, x: Box::new(x), mean: Box::new(mean) };
+        let kind = NodeKind::MvNormal { index, x: Box::new(x), mean: Box::new(mean) };
         Ok(Node { kind, shape: Shape::Scalar, constant })
     }
+}
+
+/// Rows, columns and row-major values of `[[…], […], …]` when every row is a non-empty list of
+/// literal numbers and all rows have one length; anything else is left to the general path,
+/// which explains what is wrong.
+fn literal_matrix(items: &[Expr]) -> Option<(usize, usize, Vec<f64>)> {
+    let columns = match &items.first()?.kind {
+        ExprKind::List(row) if !row.is_empty() => row.len(),
+        _ => return None,
+    };
+    let mut values = Vec::new();
+    for item in items {
+        match &item.kind {
+            ExprKind::List(row) if row.len() == columns => {
+                for e in row {
+                    values.push(literal_number(e)?);
+                }
+            }
+            _ => return None,
+        }
+    }
+    Some((items.len(), columns, values))
 }
 
 /// The number a literal such as `3` or `-2.5` stands for.
