@@ -17,6 +17,10 @@ fn error(source: &str) -> Diagnostic {
     assert!(d.span.start <= d.span.end && d.span.end <= source.len(), "span {:?} of {}", d.span, source.len());
     let rendered = d.render("hostile.mw", source);
     assert!(rendered.contains(&d.message));
+    // The line under the message is cut around the caret however long the line of text is
+    // (it used to be printed whole: megabytes for a long list of data).
+    let shown = rendered.lines().nth(2).unwrap_or("");
+    assert!(shown.chars().count() <= 200, "{} characters shown", shown.chars().count());
     d
 }
 
