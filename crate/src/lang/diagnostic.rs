@@ -45,6 +45,10 @@ impl Position {
     }
 }
 
+/// Longest stretch of a line that [`Diagnostic::render`] shows; longer lines are cut around the
+/// caret, so an error in a megabyte-long line of data prints a few lines, not the megabyte.
+const SHOWN_CHARS: usize = 160;
+
 /// One problem with a model: what went wrong, where, and what would have been right.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Diagnostic {
@@ -81,15 +85,31 @@ impl Diagnostic {
     pub fn render(&self, file: &str, source: &str) -> String {
         let at = self.position(source);
         let mut out = format!("{file}:{}:{}: error: {}\n", at.line, at.column, self.message);
-        let line_text = source.lines().nth(at.line - 1).unwrap_or("");
+        let line: Vec<char> = source.lines().nth(at.line - 1).unwrap_or("").chars().collect();
         let gutter = at.line.to_string();
         let pad = " ".repeat(gutter.len());
-        // Width of the caret: the span's characters on this line, at least one.
+        // A long line (a list of data on one line, say) is cut to a stretch around the caret.
+        let caret = (at.column - 1).min(line.len());
+        let (from, to) = if line.len() <= SHOWN_CHARS {
+            (0, line.len())
+        } else {
+            let from = caret.saturating_sub(SHOWN_CHARS / 3).min(line.len() - SHOWN_CHARS);
+            (from, from + SHOWN_CHARS)
+        };
+        let mut shown: String = line[from..to].iter().collect();
+        let mut lead: String = line[from..caret].iter().map(|&c| if c == '\t' { '\t' } else { ' ' }).collect();
+        if from > 0 {
+            shown.insert(0, '…');
+            lead.insert(0, ' ');
+        }
+        if to < line.len() {
+            shown.push('…');
+        }
+        // Width of the caret: the span's characters on this line, at least one, within what is shown.
         let span_text = source.get(self.span.start..self.span.end.min(source.len())).unwrap_or("");
-        let width = span_text.lines().next().map_or(0, |s| s.chars().count()).max(1);
-        let lead: String = line_text.chars().take(at.column - 1).map(|c| if c == '\t' { '\t' } else { ' ' }).collect();
+        let width = span_text.lines().next().map_or(0, |s| s.chars().count()).min(to - caret).max(1);
         let _ = writeln!(out, "{pad} |");
-        let _ = writeln!(out, "{gutter} | {line_text}");
+        let _ = writeln!(out, "{gutter} | {shown}");
         let _ = writeln!(out, "{pad} | {lead}{}", "^".repeat(width));
         if let Some(expected) = &self.expected {
             let _ = writeln!(out, "{pad} = expected {expected}");
@@ -101,11 +121,21 @@ impl Diagnostic {
     }
 }
 
+/// Names longer than this get no suggestion: nobody mistypes one, and the edit distance takes
+/// time and memory in proportion to the product of the two lengths.
+const MAX_SUGGESTED_CHARS: usize = 64;
+
 /// The closest of `candidates` to `name` by edit distance, if close enough to be a likely typo.
 pub fn did_you_mean<'a>(name: &str, candidates: impl IntoIterator<Item = &'a str>) -> Option<&'a str> {
-    let limit = (name.chars().count() / 3).max(1);
+    let chars = name.chars().count();
+    if chars > MAX_SUGGESTED_CHARS {
+        return None;
+    }
+    let limit = (chars / 3).max(1);
     candidates
         .into_iter()
+        // Lengths further apart than the limit are further apart in edit distance too.
+        .filter(|c| c.len() <= 4 * (chars + limit) && c.chars().count().abs_diff(chars) <= limit)
         .map(|c| (edit_distance(name, c), c))
         .filter(|&(d, _)| d <= limit)
         // Ties go to the alphabetically first, so the hint does not depend on hash order.
@@ -160,6 +190,20 @@ mod tests {
             d.render("m.mw", src),
             "m.mw:2:9: error: unknown support `positve`\n  |\n2 | sigma : positve\n  |         ^^^^^^^\n  = expected a support such as `real` or `positive`\n  = help: did you mean `positive`?\n"
         );
+    }
+
+    #[test]
+    fn render_cuts_long_lines_around_the_caret() {
+        let src = format!("x = [{}, oops, {}]\n", "1, ".repeat(1000), "2, ".repeat(1000));
+        let at = src.find("oops").expect("in the text");
+        let text = Diagnostic::new("unknown name `oops`", Span::new(at, at + 4)).render("m.mw", &src);
+        let lines: Vec<&str> = text.lines().collect();
+        assert!(lines[2].starts_with("1 | …") && lines[2].ends_with('…') && lines[2].contains("oops"), "{text}");
+        assert!(lines[2].chars().count() < SHOWN_CHARS + 10);
+        // The caret stays under the name.
+        let caret = lines[3].chars().position(|c| c == '^').expect("a caret");
+        assert_eq!(lines[2].chars().skip(caret).take(4).collect::<String>(), "oops");
+        assert_eq!(lines[3].matches('^').count(), 4);
     }
 
     #[test]

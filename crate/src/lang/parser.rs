@@ -154,17 +154,30 @@ impl<'s> Parser<'s> {
     }
 
     fn expr(&mut self, min_bp: u8) -> Result<Expr, Diagnostic> {
+        // A chain such as `a + b + c` or `v[1][2]` is built by a loop, not by recursion, yet each
+        // link wraps the tree one level deeper; `expr_inner` counts the links, this restores.
+        let outer = self.depth;
+        let result = self.nest().and_then(|()| self.expr_inner(min_bp));
+        self.depth = outer;
+        result
+    }
+
+    /// One level deeper in the tree being built. Deeper than [`MAX_NESTING`] is an error here
+    /// rather than a stack overflow in whatever walks the tree later.
+    fn nest(&mut self) -> Result<(), Diagnostic> {
         self.depth += 1;
         if self.depth > MAX_NESTING {
             let token = self.peek();
             return Err(Diagnostic::new(
                 format!("expressions are nested more than {MAX_NESTING} deep here"),
                 Span::new(token.start, token.end()),
+            )
+            .help(
+                "each operator of a chain such as `a + b + c` is one level: put many terms in a list and \
+                 use `sum(…)`, or give parts of the expression names",
             ));
         }
-        let result = self.expr_inner(min_bp);
-        self.depth -= 1;
-        result
+        Ok(())
     }
 
     fn expr_inner(&mut self, min_bp: u8) -> Result<Expr, Diagnostic> {
@@ -175,6 +188,7 @@ impl<'s> Parser<'s> {
                 if POSTFIX_INDEX < min_bp {
                     break;
                 }
+                self.nest()?;
                 self.bump();
                 let indices = self.list(TokenKind::RBracket)?;
                 let end = self.tokens[self.pos - 1].end();
@@ -186,6 +200,7 @@ impl<'s> Parser<'s> {
             if left_bp < min_bp {
                 break;
             }
+            self.nest()?;
             self.bump();
             let rhs = self.expr(right_bp)?;
             let span = lhs.span.to(rhs.span);

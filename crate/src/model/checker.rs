@@ -35,7 +35,15 @@ struct Checker<'s> {
     constants: Vec<Constant>,
     derived: Vec<Derived>,
     mvnormals: Vec<MvNormal>,
+    /// The factorised covariance (index into `mvnormals`) of each constant used as one.
+    factorised: HashMap<usize, usize>,
     dim: usize,
+    /// Numbers held as data so far, against [`MAX_DATA`].
+    data: usize,
+    /// Elements computed so far, against [`MAX_WORK`].
+    work: usize,
+    /// Elements of the derived quantities so far; with `dim`, against [`MAX_RECORDED`].
+    derived_len: usize,
 }
 
 fn is_reserved(name: &str) -> bool {
@@ -52,8 +60,58 @@ impl<'s> Checker<'s> {
             constants: Vec::new(),
             derived: Vec::new(),
             mvnormals: Vec::new(),
+            factorised: HashMap::new(),
             dim: 0,
+            data: 0,
+            work: 0,
+            derived_len: 0,
         }
+    }
+
+    /// Count `n` more numbers of data, held until the model is dropped.
+    fn hold_data(&mut self, n: usize, span: Span) -> Result<(), Diagnostic> {
+        self.data = self.data.saturating_add(n);
+        if self.data > MAX_DATA {
+            return Err(Diagnostic::new(
+                format!("the model's data would hold more than {MAX_DATA} numbers in all (the data limit)"),
+                span,
+            )
+            .help("this counts every list and number, values computed from them, and each covariance"));
+        }
+        Ok(())
+    }
+
+    /// Check that `n` more recorded values for `name` stay within [`MAX_RECORDED`].
+    fn record(&self, name: &Ident, n: usize, span: Span) -> Result<(), Diagnostic> {
+        if self.dim + self.derived_len + n > MAX_RECORDED {
+            return Err(Diagnostic::new(
+                format!(
+                    "a draw would record more than {MAX_RECORDED} values (parameter and derived elements); `{}` has {n}",
+                    name.name
+                ),
+                span,
+            )
+            .help("sum or index a long derived list down to the values worth recording"));
+        }
+        Ok(())
+    }
+
+    /// Count the elements `node` computes, before anything bigger is built on it.
+    fn charge(&mut self, node: &Node, span: Span) -> Result<(), Diagnostic> {
+        // Parameters and derived quantities are computed once however often they are named; data
+        // named in an expression is copied wherever the expression is folded.
+        if matches!(node.kind, NodeKind::Parameter(_) | NodeKind::Derived(_)) {
+            return Ok(());
+        }
+        self.work = self.work.saturating_add(node.shape.len());
+        if self.work > MAX_WORK {
+            return Err(Diagnostic::new(
+                format!("this model computes more than {MAX_WORK} values in all (the work limit)"),
+                span,
+            )
+            .help("large lists used many times, or indices that repeat large lists, add up to this"));
+        }
+        Ok(())
     }
 
     fn line_of(&self, span: Span) -> usize {
@@ -133,6 +191,13 @@ impl<'s> Checker<'s> {
                         a.span.to(b.span),
                     ));
                 }
+                if !(hi - lo).is_finite() {
+                    return Err(Diagnostic::new(
+                        format!("the bounds {lo} and {hi} are too far apart: their difference overflows"),
+                        a.span.to(b.span),
+                    )
+                    .expected("bounds less than 1.8e308 apart"));
+                }
                 Transform::Between(lo, hi)
             }
         };
@@ -142,6 +207,7 @@ impl<'s> Checker<'s> {
                 support.span,
             ));
         }
+        self.record(name, shape.len(), support.span)?;
         let written = Support { size: None, ..support.clone() }.to_string();
         self.bindings.insert(name.name.clone(), Binding::Parameter(self.parameters.len()));
         self.parameters.push(Parameter {
@@ -212,9 +278,12 @@ impl<'s> Checker<'s> {
                 )
                 .expected("finite numbers"));
             }
+            self.hold_data(values.len(), value.span)?;
             self.constants.push(Constant { name: Some(name.name.clone()), shape: node.shape, values });
             Binding::Constant(self.constants.len() - 1)
         } else {
+            self.record(name, node.shape.len(), value.span)?;
+            self.derived_len += node.shape.len();
             self.derived.push(Derived { name: name.name.clone(), node });
             Binding::Derived(self.derived.len() - 1)
         };
@@ -231,9 +300,10 @@ impl<'s> Checker<'s> {
         Ok(node)
     }
 
-    fn constant(&mut self, shape: Shape, values: Vec<f64>) -> Node {
+    fn constant(&mut self, shape: Shape, values: Vec<f64>, span: Span) -> Result<Node, Diagnostic> {
+        self.hold_data(values.len(), span)?;
         self.constants.push(Constant { name: None, shape, values });
-        Node { kind: NodeKind::Constant(self.constants.len() - 1), shape, constant: true }
+        Ok(Node { kind: NodeKind::Constant(self.constants.len() - 1), shape, constant: true })
     }
 
     /// The log of a density factor, as a scalar node: products become sums, quotients
@@ -267,19 +337,27 @@ impl<'s> Checker<'s> {
                 Ok(sum_if_many(inner))
             }
             ExprKind::Call { variate: Some(_), .. } => self.expr_log_density(e),
-            ExprKind::Number(c) if *c > 0.0 => Ok(self.constant(Shape::Scalar, vec![libm::log(*c)])),
+            ExprKind::Number(c) if *c > 0.0 => self.constant(Shape::Scalar, vec![libm::log(*c)], e.span),
             ExprKind::Number(_) | ExprKind::Neg(_) => Err(Diagnostic::new("a density factor must be positive", e.span)
                 .expected("a positive factor such as a distribution, `exp(…)` or a positive number")),
             _ => {
-                let value = self.expr(e)?;
-                Ok(sum_if_many(map(UnaryFn::Log, value)))
+                let logs = map(UnaryFn::Log, self.expr(e)?);
+                self.charge(&logs, e.span)?;
+                Ok(sum_if_many(logs))
             }
         }
     }
 
+    /// The checked node of an expression, its elements counted against [`MAX_WORK`].
     fn expr(&mut self, e: &Expr) -> Result<Node, Diagnostic> {
+        let node = self.expr_node(e)?;
+        self.charge(&node, e.span)?;
+        Ok(node)
+    }
+
+    fn expr_node(&mut self, e: &Expr) -> Result<Node, Diagnostic> {
         match &e.kind {
-            ExprKind::Number(v) => Ok(self.constant(Shape::Scalar, vec![*v])),
+            ExprKind::Number(v) => self.constant(Shape::Scalar, vec![*v], e.span),
             ExprKind::Name(name) => self.name(name, e.span),
             ExprKind::List(items) => self.list(items, e.span),
             ExprKind::Neg(inner) => Ok(map(UnaryFn::Neg, self.expr(inner)?)),
@@ -337,9 +415,20 @@ impl<'s> Checker<'s> {
             return Err(Diagnostic::new("an empty list", span).expected("at least one element"));
         }
         // Lists of plain numbers (data) become one constant directly.
+        let too_long = || Diagnostic::new(format!("the list has more than {MAX_LENGTH} elements"), span);
         let literal: Option<Vec<f64>> = items.iter().map(literal_number).collect();
         if let Some(values) = literal {
-            return Ok(self.constant(Shape::Vector(values.len()), values));
+            if values.len() > MAX_LENGTH {
+                return Err(too_long());
+            }
+            return self.constant(Shape::Vector(values.len()), values, span);
+        }
+        // So do matrices of plain numbers: one constant, not one per row and then the matrix.
+        if let Some((rows, columns, values)) = literal_matrix(items) {
+            if rows.checked_mul(columns).is_none_or(|n| n > MAX_LENGTH) {
+                return Err(too_long());
+            }
+            return self.constant(Shape::Matrix(rows, columns), values, span);
         }
         let nodes = items.iter().map(|item| self.expr(item)).collect::<Result<Vec<_>, _>>()?;
         let shape = match nodes[0].shape {
@@ -359,8 +448,9 @@ impl<'s> Checker<'s> {
                 .expected("elements of one shape: all numbers, or rows of equal length"));
             }
         }
-        if shape.len() > MAX_LENGTH {
-            return Err(Diagnostic::new(format!("the list has more than {MAX_LENGTH} elements"), span));
+        // Rows × columns, checked before anything multiplies them (a 32-bit `usize` overflows).
+        if nodes.len().checked_mul(nodes[0].shape.len()).is_none_or(|n| n > MAX_LENGTH) {
+            return Err(too_long());
         }
         let constant = nodes.iter().all(|n| n.constant);
         Ok(Node { kind: NodeKind::Stack(nodes), shape, constant })
@@ -407,6 +497,16 @@ impl<'s> Checker<'s> {
         // A single index into a matrix picks whole rows.
         if dims.len() == 2 && indices.len() == 1 {
             axes.push(((0..dims[1]).collect(), true));
+        }
+        // `M[i, j]` picks len(i)·len(j) elements: refuse too many before making the list of them.
+        let picks = axes.iter().try_fold(1usize, |n, (p, _)| n.checked_mul(p.len()));
+        if picks.is_none_or(|n| n > MAX_LENGTH) {
+            let span = indices[0].span.to(indices[indices.len() - 1].span);
+            let count = picks.map_or_else(|| "too many".to_string(), |n| n.to_string());
+            return Err(Diagnostic::new(
+                format!("these indices pick {count} elements, more than the limit of {MAX_LENGTH} for one value"),
+                span,
+            ));
         }
         let stride = if dims.len() == 2 { dims[1] } else { 1 };
         let mut positions = Vec::new();
@@ -630,14 +730,53 @@ impl<'s> Checker<'s> {
             return Err(Diagnostic::new("the covariance of `mvnormal` must be data", args[1].span)
                 .expected("a matrix known before sampling"));
         }
-        let values = self.evaluate(&cov);
-        let dist =
-            MvNormal::new(&values, d).map_err(|why| Diagnostic::new(format!("this covariance {why}"), args[1].span))?;
-        self.mvnormals.push(dist);
+        // Factorising takes time cubic in d: once per named covariance, however often it is used.
+        let named = match cov.kind {
+            NodeKind::Constant(i) => Some(i),
+            _ => None,
+        };
+        let index = match named.and_then(|i| self.factorised.get(&i)) {
+            Some(&index) => index,
+            None => {
+                // The factor is kept as data; count it before factorising.
+                self.hold_data(d * d, args[1].span)?;
+                let values = self.evaluate(&cov);
+                let dist = MvNormal::new(&values, d)
+                    .map_err(|why| Diagnostic::new(format!("this covariance {why}"), args[1].span))?;
+                self.mvnormals.push(dist);
+                let index = self.mvnormals.len() - 1;
+                if let Some(i) = named {
+                    self.factorised.insert(i, index);
+                }
+                index
+            }
+        };
         let constant = x.constant && mean.constant;
-        let kind = NodeKind::MvNormal { index: self.mvnormals.len() - 1, x: Box::new(x), mean: Box::new(mean) };
+        let kind = NodeKind::MvNormal { index, x: Box::new(x), mean: Box::new(mean) };
         Ok(Node { kind, shape: Shape::Scalar, constant })
     }
+}
+
+/// Rows, columns and row-major values of `[[…], […], …]` when every row is a non-empty list of
+/// literal numbers and all rows have one length; anything else is left to the general path,
+/// which explains what is wrong.
+fn literal_matrix(items: &[Expr]) -> Option<(usize, usize, Vec<f64>)> {
+    let columns = match &items.first()?.kind {
+        ExprKind::List(row) if !row.is_empty() => row.len(),
+        _ => return None,
+    };
+    let mut values = Vec::new();
+    for item in items {
+        match &item.kind {
+            ExprKind::List(row) if row.len() == columns => {
+                for e in row {
+                    values.push(literal_number(e)?);
+                }
+            }
+            _ => return None,
+        }
+    }
+    Some((items.len(), columns, values))
 }
 
 /// The number a literal such as `3` or `-2.5` stands for.

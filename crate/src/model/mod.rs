@@ -11,10 +11,22 @@ use builtins::{BinaryFn, ReduceFn, UnaryFn};
 use serde::Serialize;
 use support::Transform;
 
-/// Largest number of elements in one parameter or one data value.
+/// Largest number of elements in one value: a parameter, a data value, or any intermediate
+/// result such as a list picked by an index.
 pub const MAX_LENGTH: usize = 1 << 20;
 /// Largest total number of unconstrained parameter coordinates.
 pub const MAX_DIMENSION: usize = 10_000;
+/// Largest total number of values a model's data holds: named data, literal numbers and lists,
+/// values computed from them, and the factorised covariance of each `mvnormal` (d² each).
+pub const MAX_DATA: usize = 8 << 20;
+/// Largest total number of elements of all the values that checking and compiling a model
+/// compute: every intermediate result, and each use of data in an expression. However a short
+/// text combines large values, the time and memory of checking it and the size of its compiled
+/// evaluator stay proportionate to this.
+pub const MAX_WORK: usize = 32 << 20;
+/// Largest number of values one draw records: the parameters' elements and the derived
+/// quantities' elements.
+pub const MAX_RECORDED: usize = 100_000;
 
 /// The shape of a value: a number, a list, or a row-major matrix.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]

@@ -1,11 +1,12 @@
 //! Flattening a checked model into instructions, folding constants on the way.
 
-use super::{Arg, Op, Tape, exec};
+use super::{Arg, Op, Tables, Tape, exec};
 use crate::dist::MvNormal;
 use crate::model::{Constant, Derived, Model, Node, NodeKind, Shape};
+use std::collections::HashMap;
 
 pub(crate) fn compile(model: &Model) -> Tape {
-    let mut c = Compiler::new(&model.constants, &model.derived, model.mvnormals.clone());
+    let mut c = Compiler::new(&model.constants, &model.derived, &model.mvnormals);
     let mut jacobians = Vec::new();
     for p in &model.parameters {
         let len = p.shape.len();
@@ -30,13 +31,14 @@ pub(crate) fn compile(model: &Model) -> Tape {
         outputs,
         columns: columns.flat_map(|(name, shape)| shape.element_names(name)).collect(),
         dim: model.dim,
+        mvnormals: model.mvnormals.clone(),
         ..c.tape
     }
 }
 
 pub(crate) fn evaluate_constant(node: &Node, constants: &[Constant], mvnormals: &[MvNormal]) -> Vec<f64> {
     debug_assert!(node.constant);
-    let mut c = Compiler::new(constants, &[], mvnormals.to_vec());
+    let mut c = Compiler::new(constants, &[], mvnormals);
     let at = c.node(node);
     c.tape.template[at..at + node.shape.len()].to_vec()
 }
@@ -44,21 +46,26 @@ pub(crate) fn evaluate_constant(node: &Node, constants: &[Constant], mvnormals: 
 struct Compiler<'m> {
     constants: &'m [Constant],
     derived: &'m [Derived],
+    /// Borrowed, not copied: the checker folds many small constants while the model's
+    /// factorised covariances may be large.
+    mvnormals: &'m [MvNormal],
     parameter_slots: Vec<usize>,
-    constant_slots: Vec<Option<usize>>,
+    /// Slots of the constants used so far; a map, because folding one small constant must not
+    /// cost time in proportion to all the constants a model has.
+    constant_slots: HashMap<usize, usize>,
     derived_slots: Vec<Option<usize>>,
     tape: Tape,
 }
 
 impl<'m> Compiler<'m> {
-    fn new(constants: &'m [Constant], derived: &'m [Derived], mvnormals: Vec<MvNormal>) -> Self {
+    fn new(constants: &'m [Constant], derived: &'m [Derived], mvnormals: &'m [MvNormal]) -> Self {
         let tape = Tape {
             ops: Vec::new(),
             density_ops: 0,
             template: Vec::new(),
             positions: Vec::new(),
             items: Vec::new(),
-            mvnormals,
+            mvnormals: Vec::new(),
             density: 0,
             jacobians: Vec::new(),
             outputs: Vec::new(),
@@ -69,8 +76,9 @@ impl<'m> Compiler<'m> {
         Compiler {
             constants,
             derived,
+            mvnormals,
             parameter_slots: Vec::new(),
-            constant_slots: vec![None; constants.len()],
+            constant_slots: HashMap::new(),
             derived_slots: vec![None; derived.len()],
             tape,
         }
@@ -85,9 +93,8 @@ impl<'m> Compiler<'m> {
     /// Add `op` to the tape, or, when its inputs are all known, run it now into the template.
     fn emit(&mut self, op: Op, constant: bool) {
         if constant {
-            let mut slots = std::mem::take(&mut self.tape.template);
-            exec::run(&self.tape, &op, &[], &mut slots);
-            self.tape.template = slots;
+            let tables = Tables { positions: &self.tape.positions, items: &self.tape.items, mvnormals: self.mvnormals };
+            exec::run(tables, &op, &[], &mut self.tape.template);
         } else {
             self.tape.ops.push(op);
         }
@@ -111,12 +118,12 @@ impl<'m> Compiler<'m> {
         let len = node.shape.len();
         let op = match &node.kind {
             NodeKind::Constant(i) => {
-                if let Some(slot) = self.constant_slots[*i] {
+                if let Some(&slot) = self.constant_slots.get(i) {
                     return slot;
                 }
                 let slot = self.alloc(len);
                 self.tape.template[slot..slot + len].copy_from_slice(&self.constants[*i].values);
-                self.constant_slots[*i] = Some(slot);
+                self.constant_slots.insert(*i, slot);
                 return slot;
             }
             NodeKind::Parameter(i) => return self.parameter_slots[*i],

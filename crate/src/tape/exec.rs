@@ -1,12 +1,12 @@
 //! Running one instruction. This is the evaluator's inner loop: no allocation, no failure.
 
-use super::{Arg, Op, Tape};
+use super::{Arg, Op, Tables};
 use crate::dist::{self, Col};
 use crate::model::builtins;
 
 /// Execute `op`, reading slots before its `dst` and writing from `dst` on.
 #[inline]
-pub(crate) fn run(tape: &Tape, op: &Op, theta: &[f64], slots: &mut [f64]) {
+pub(crate) fn run(tables: Tables, op: &Op, theta: &[f64], slots: &mut [f64]) {
     match *op {
         Op::Constrain { transform, theta: at, len, dst, jacobian } => {
             let mut log_jacobian = 0.0;
@@ -36,13 +36,13 @@ pub(crate) fn run(tape: &Tape, op: &Op, theta: &[f64], slots: &mut [f64]) {
         }
         Op::Gather { src, from, to, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            for (o, &p) in output.iter_mut().zip(&tape.positions[from..to]) {
+            for (o, &p) in output.iter_mut().zip(&tables.positions[from..to]) {
                 *o = input[src + p];
             }
         }
         Op::Stack { from, to, item_len, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            for (chunk, &item) in output.chunks_exact_mut(item_len).zip(&tape.items[from..to]) {
+            for (chunk, &item) in output.chunks_exact_mut(item_len).zip(&tables.items[from..to]) {
                 chunk.copy_from_slice(&input[item..item + item_len]);
             }
         }
@@ -53,8 +53,8 @@ pub(crate) fn run(tape: &Tape, op: &Op, theta: &[f64], slots: &mut [f64]) {
         }
         Op::MvNormal { index, x, mean, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            let d = tape.mvnormals[index].dim();
-            output[0] = tape.mvnormals[index].log_density(Col::vector(&input[x..x + d]), column(input, mean, d));
+            let d = tables.mvnormals[index].dim();
+            output[0] = tables.mvnormals[index].log_density(Col::vector(&input[x..x + d]), column(input, mean, d));
         }
     }
 }

@@ -97,6 +97,15 @@ pub(crate) enum Op {
     },
 }
 
+/// The read-only tables instructions look things up in, borrowed from a [`Tape`] or, while
+/// compiling, from the tape being built and the model.
+#[derive(Clone, Copy)]
+pub(crate) struct Tables<'t> {
+    pub positions: &'t [usize],
+    pub items: &'t [usize],
+    pub mvnormals: &'t [MvNormal],
+}
+
 /// A compiled model. Immutable and cheap to share between chains; each chain owns a [`Scratch`].
 #[derive(Clone, Debug)]
 pub struct Tape {
@@ -136,6 +145,10 @@ impl Tape {
         Scratch { slots: self.template.clone() }
     }
 
+    fn tables(&self) -> Tables<'_> {
+        Tables { positions: &self.positions, items: &self.items, mvnormals: &self.mvnormals }
+    }
+
     /// Number of unconstrained coordinates.
     pub fn dim(&self) -> usize {
         self.dim
@@ -154,8 +167,9 @@ impl Tape {
     pub fn log_density_parts(&self, theta: &[f64], scratch: &mut Scratch) -> (f64, f64) {
         debug_assert_eq!(theta.len(), self.dim);
         let slots = &mut scratch.slots;
+        let tables = self.tables();
         for op in &self.ops[..self.density_ops] {
-            exec::run(self, op, theta, slots);
+            exec::run(tables, op, theta, slots);
         }
         let jacobian = self.jacobians.iter().map(|&j| slots[j]).sum();
         (slots[self.density], jacobian)
@@ -171,8 +185,9 @@ impl Tape {
     /// constrained parameters and derived quantities into `out` (length `columns().len()`).
     pub fn write_draw(&self, theta: &[f64], scratch: &mut Scratch, out: &mut [f64]) {
         let slots = &mut scratch.slots;
+        let tables = self.tables();
         for op in &self.ops[self.density_ops..] {
-            exec::run(self, op, theta, slots);
+            exec::run(tables, op, theta, slots);
         }
         let mut k = 0;
         for &(start, len) in &self.outputs {
