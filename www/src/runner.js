@@ -1,0 +1,122 @@
+// Drives runs: the plan (a RunEngine) in the planning worker, the chains (ChainEngines) in one
+// chain worker per processor core. The main thread only relays: task → every chain → outcomes →
+// plan → next task. Cancelling terminates the chain workers at once; the plan then reports the
+// draws made so far, marked incomplete.
+
+import { Stopped, comparisonConfigs, startWorker } from './engine.js';
+
+/** Autocorrelation is reported to this lag, as `mixwell run` does by default (its --lags). */
+export const LAGS = 20;
+
+/** The chain indices each of `workers` chain workers holds: chain i goes to worker i mod workers. */
+export function chainGroups(chains, workers) {
+  const groups = Array.from({ length: workers }, () => []);
+  for (let i = 0; i < chains; i++) groups[i % workers].push(i);
+  return groups;
+}
+
+/** How many chain workers a run of `chains` chains gets: one per core, at most one per chain. */
+export function workerCount(chains) {
+  const cores = Math.max(1, Math.floor(navigator.hardwareConcurrency || 2));
+  return Math.max(1, Math.min(chains, cores));
+}
+
+/**
+ * Start a job: one run of `config`, or with `compare`, one run per tuning method that applies
+ * (comparison_configs), one after another, the chosen method's report then carrying the
+ * comparison. `onProgress({ run, runs, method, phase, done, total })` is called after every task.
+ * Returns `{ done, cancel }`; `done` resolves to `{ finished, cancelled, method, completedRuns,
+ * runs }`, where `finished` is what RunEngine.finish returns (with the comparison attached).
+ */
+export function startJob({ source, config, compare, onProgress }) {
+  const planner = startWorker('./worker.js', 'mixwell-plan');
+  let cancelled = false;
+  let chainWorkers = [];
+
+  const stopChains = () => {
+    for (const worker of chainWorkers) worker.stop();
+    chainWorkers = [];
+  };
+
+  // One run; resolves to { run, finished, seconds }.
+  async function runOnce(runConfig, report) {
+    const count = workerCount(runConfig.chains);
+    chainWorkers = Array.from({ length: count }, (_, w) => startWorker('./chain-worker.js', `mixwell-chains-${w + 1}`));
+    const workers = chainWorkers;
+    const groups = chainGroups(runConfig.chains, count);
+    let run = null;
+    let started = null;
+    let seconds = 0;
+    const opening = planner.request('open', { source, config: runConfig, lags: LAGS });
+    try {
+      await Promise.all([
+        opening,
+        ...workers.map((worker, w) => worker.request('open', { source, seed: runConfig.seed, chains: groups[w] })),
+      ]);
+      let task, progress;
+      ({ run, task, progress } = await opening);
+      report(progress);
+      while (task !== null && !cancelled) {
+        const answers = await Promise.all(workers.map((worker) => worker.request('perform', { task })));
+        const outcomes = answers.flatMap((answer) => answer.outcomes);
+        const transfer = outcomes.map((outcome) => outcome.rows.buffer);
+        ({ task, progress } = await planner.request('step', { run, outcomes }, transfer));
+        // Timed as the command line times it: from the first report of the sampling phase to
+        // the report that the run is done.
+        if (progress.phase === 'sampling' && started === null) started = performance.now();
+        if (progress.phase === 'done' && started !== null) seconds = (performance.now() - started) / 1000;
+        report(progress);
+      }
+    } catch (error) {
+      if (!(cancelled && error instanceof Stopped)) throw error;
+    } finally {
+      for (const worker of workers) worker.stop();
+    }
+    // Cancelled while the chains were starting: the plan is open all the same.
+    if (run === null) ({ run } = await opening);
+    if (cancelled && started !== null) seconds = (performance.now() - started) / 1000;
+    const { finished } = await planner.request('finish', { run, seconds });
+    return { run, finished, seconds };
+  }
+
+  async function drive() {
+    const configs = compare ? comparisonConfigs(config) : [config];
+    const chosen = configs.findIndex((c) => c.tuning.method === config.tuning.method);
+    if (chosen < 0) throw new Error('the chosen tuning method is not among the methods compared');
+    const rows = [];
+    let primary = null;
+    for (let i = 0; i < configs.length; i++) {
+      const method = configs[i].tuning.method;
+      const outcome = await runOnce(configs[i], (progress) => onProgress({ run: i + 1, runs: configs.length, method, ...progress }));
+      if (cancelled) {
+        return { finished: outcome.finished, cancelled: true, method, completedRuns: i, runs: configs.length };
+      }
+      rows.push(outcome.finished.comparison);
+      if (i === chosen) primary = outcome;
+      else await planner.request('close', { run: outcome.run });
+    }
+    if (compare) {
+      const attached = await planner.request('attach', { run: primary.run, rows });
+      primary.finished.report = attached.report;
+      primary.finished.json = attached.json;
+    }
+    return {
+      finished: primary.finished, cancelled: false, method: config.tuning.method,
+      completedRuns: configs.length, runs: configs.length,
+    };
+  }
+
+  const done = drive().finally(() => {
+    stopChains();
+    planner.stop();
+  });
+  return {
+    done,
+    /** Stop now: the chain workers end at once; `done` then resolves with the draws so far. */
+    cancel() {
+      if (cancelled) return;
+      cancelled = true;
+      stopChains();
+    },
+  };
+}
