@@ -162,9 +162,8 @@ async function main() {
     const defaults = lastCheck?.ok ? defaultsFor(values.kernel).settings.settings : null;
     for (const [key, value] of Object.entries(defaults ?? {})) form.elements[key].placeholder = Number(value.toPrecision(4)).toString();
     const method = form.elements.tuning.value;
-    ownNote.textContent = !values.own
-      ? 'Without your own setting the kernel starts from the usual default, shown in grey.'
-      : {
+    ownNote.hidden = !values.own;
+    ownNote.textContent = !values.own ? '' : {
         bo: 'Bayesian optimisation searches its own range; your setting is the baseline when methods are compared.',
         rm: 'Robbins–Monro starts from your setting.',
         am: 'Adaptive Metropolis starts from your setting.',
@@ -182,6 +181,7 @@ async function main() {
     cancelButton.disabled = !running;
     let config = null;
     let problem = null;
+    let linkProblem = null;
     if (!engineReady) problem = 'The engine is starting…';
     else if (!lastCheck) problem = 'Reading the model…';
     else if (!lastCheck.ok) {
@@ -192,10 +192,12 @@ async function main() {
         config = currentConfig();
         link = makeLink(text(), config, location.origin + location.pathname);
       } catch (error) {
-        problem = error.message;
+        // A configuration the engine refuses cannot run; a model too large for a link still can.
+        if (config === null) problem = error.message;
+        else linkProblem = error.message;
       }
     }
-    startButton.disabled = running || problem !== null || config === null;
+    startButton.disabled = running || problem !== null;
     if (!running) {
       runStatus.textContent = problem ?? '';
       runStatus.dataset.state = problem ? 'problem' : '';
@@ -205,8 +207,9 @@ async function main() {
       shareStatus.dataset.state = '';
       shareField.value = link;
     } else {
-      shareStatus.textContent = problem ? `No link yet: ${problem}` : 'No link yet.';
-      shareStatus.dataset.state = problem && config !== null ? 'problem' : '';
+      shareStatus.textContent = lastCheck && !lastCheck.ok ? 'No link until the model reads cleanly.'
+        : linkProblem ? `No link: ${linkProblem}.` : problem ? `No link: ${problem}` : 'No link yet.';
+      shareStatus.dataset.state = linkProblem ? 'problem' : '';
       shareField.value = '';
     }
     copyButton.disabled = link === null;
@@ -278,6 +281,10 @@ async function main() {
     finishedRun = outcome.finished;
     resultsArea.hidden = false;
     shownResults = showResults(resultsArea, outcome.finished, { ...outcome, seconds, onExport });
+    // How long the job took from start to its last answer (rendering aside), for benchmarks.
+    resultsArea.dataset.seconds = String(seconds);
+    // A counter of results shown, so that anyone waiting for new results can tell them apart.
+    resultsArea.dataset.shown = String(Number(resultsArea.dataset.shown ?? 0) + 1);
     if (outcome.cancelled) runStatus.textContent = 'Stopped. The chains were ended; the results below are marked incomplete.';
     resultsArea.scrollIntoView({ behavior: 'smooth', block: 'start' });
   };
@@ -317,7 +324,8 @@ async function main() {
     try {
       shared = readLink(address);
     } catch (error) {
-      showBanner('error', h('strong', {}, 'This link could not be opened. '), `${error.message}. `,
+      const why = error.message.charAt(0).toUpperCase() + error.message.slice(1);
+      showBanner('error', h('strong', {}, 'This link could not be opened. '), `${why}. `,
         'Nothing was loaded: your model and settings are as they were.');
       return;
     }

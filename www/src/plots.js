@@ -288,7 +288,8 @@ function logSplits(ax) {
 function settingAxis(ax, side = {}) {
   const format = (v) => {
     const value = axisValue(ax, v);
-    return Math.abs(value) >= 100 || Math.abs(value) < 0.01 ? value.toPrecision(2) : String(Number(value.toPrecision(3)));
+    if (Math.abs(value) >= 100) return String(Math.round(value));
+    return Math.abs(value) < 0.01 ? value.toPrecision(2) : String(Number(value.toPrecision(3)));
   };
   return axis(`${ax.name}${ax.log_scale ? ' (log scale)' : ''}`, {
     ...(ax.log_scale ? { splits: () => logSplits(ax) } : {}),

@@ -1,0 +1,76 @@
+// The page benchmark (part of `make bench`): the same tune+sample run of each benchmark model of
+// crate/benches/models/mod.rs (written out as tests/browser/bench/*.mw by regenerate.sh), timed in
+// the page (WebAssembly in headless Chromium, chains in Web Workers) and natively (`mixwell run
+// --link` with the page's link, chains in threads), and the ratio printed. Target: the page within
+// 1.5× of native. Each side runs once untimed (compilation, caches), then RUNS times; the fastest
+// run counts, because other work on a shared machine only ever slows a run down.
+//
+// The run: the page's defaults — 4 chains, a 200-sweep pilot, Bayesian optimisation with 100
+// trials of 100 steps, 1,000 warm-up steps, 1,000 draws — with seed 1.
+import { spawnSync } from 'node:child_process';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { ROOT, requireBuilt, serveWww } from './serve.mjs';
+
+const RUNS = Number(process.env.MIXWELL_BENCH_RUNS ?? 3);
+const MODELS = ['normal_1000', 'logistic_500x5', 'correlated_gaussian_10'];
+const SETTINGS = { kernel: 'rwm', tuning: 'bo', chains: 4, draws: 1000, warmup: 1000, trials: 100, window: 100, pilot: 200, seed: 1 };
+
+const bin = requireBuilt();
+const server = await serveWww();
+process.env.MIXWELL_PAGE_URL = server.base;
+process.env.MIXWELL_BIN = bin;
+const { openChecked, fillRunForm, replaceEditorText, runAndWait, downloadText } = await import('./harness.mjs');
+
+const median = (xs) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
+const rows = [];
+let failed = false;
+for (const model of MODELS) {
+  const source = readFileSync(join(ROOT, 'tests', 'browser', 'bench', `${model}.mw`), 'utf8');
+  const session = await openChecked();
+  try {
+    const { page } = session;
+    await replaceEditorText(page, source);
+    await session.waitFor('the model to read cleanly', () => document.getElementById('check-status').dataset.state === 'ok', null, 60_000);
+    await fillRunForm(page, SETTINGS);
+    const link = await page.inputValue('#share-link');
+    const pageTimes = [];
+    let pageJson = null;
+    for (let run = 0; run <= RUNS; run++) {
+      await runAndWait(session, { timeout: 600_000 });
+      if (run > 0) pageTimes.push(Number(await page.$eval('#results', (el) => el.dataset.seconds)));
+      pageJson ??= await downloadText(page, '#export-json');
+    }
+    const nativeTimes = [];
+    let nativeJson = null;
+    for (let run = 0; run <= RUNS; run++) {
+      const started = performance.now();
+      const result = spawnSync(bin, ['run', '--link', link, '--quiet', '--json', '-'], { encoding: 'utf8', maxBuffer: 1 << 28 });
+      const seconds = (performance.now() - started) / 1000;
+      if (result.status !== 0) throw new Error(`mixwell run failed: ${result.stderr}`);
+      if (run > 0) nativeTimes.push(seconds);
+      nativeJson ??= result.stdout;
+    }
+    const same = pageJson === nativeJson;
+    if (!same) failed = true;
+    rows.push({ model, pageTimes, nativeTimes, same });
+  } finally {
+    await session.close();
+  }
+}
+server.stop();
+
+const cores = (await import('node:os')).availableParallelism();
+console.log(`\nThe same tune+sample run in the page and natively (${RUNS} timed runs each; ${cores} cores; seconds)`);
+console.log('model                      page best  page median  native best  native median  ratio (best)  same report');
+for (const { model, pageTimes, nativeTimes, same } of rows) {
+  const ratio = Math.min(...pageTimes) / Math.min(...nativeTimes);
+  console.log(`${model.padEnd(26)} ${Math.min(...pageTimes).toFixed(2).padStart(9)}  ${median(pageTimes).toFixed(2).padStart(11)}`
+    + `  ${Math.min(...nativeTimes).toFixed(2).padStart(11)}  ${median(nativeTimes).toFixed(2).padStart(13)}`
+    + `  ${ratio.toFixed(2).padStart(11)}×  ${same ? 'yes' : 'NO'}`);
+}
+console.log('Target: the page within 1.5× of native. Page times run from Start to the last answer of the workers.');
+if (failed) {
+  console.error('the page and the command line disagreed on a report');
+  process.exit(1);
+}
