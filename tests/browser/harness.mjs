@@ -63,7 +63,9 @@ export async function openPage({ viewport = { width: 1280, height: 800 } } = {})
     if (url.startsWith('data:') || url.startsWith('blob:')) return;
     note(`[request] ${url}`, new URL(url).origin !== origin);
   });
-  context.on('requestfailed', (request) => note(`[request failed] ${request.url()}: ${request.failure()?.errorText}`, true));
+  // While the test has taken the browser offline, failed requests are expected.
+  let offline = false;
+  context.on('requestfailed', (request) => note(`[request failed] ${request.url()}: ${request.failure()?.errorText}`, !offline));
   context.on('response', (response) => {
     if (response.status() >= 400) note(`[response ${response.status()}] ${response.url()}`, true);
   });
@@ -79,6 +81,11 @@ export async function openPage({ viewport = { width: 1280, height: 800 } } = {})
   return {
     page,
     context,
+    /** Take the browser off the network, or back on. */
+    async setOffline(value) {
+      offline = value;
+      await context.setOffline(value);
+    },
     /** Another tab in the same browser (same storage), watched like the first. */
     async newPage() {
       return watch(await context.newPage());

@@ -4,7 +4,7 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import {
-  crateVersion, editorText, exampleFiles, fillRunForm, openChecked, replaceEditorText, runAndWait,
+  crateVersion, downloadText, editorText, exampleFiles, fillRunForm, openChecked, replaceEditorText, runAndWait,
 } from './harness.mjs';
 
 // Declarations `name : support` in model text, read with a regular expression here rather than by
@@ -272,5 +272,24 @@ test('with results shown the page fits a laptop screen and a phone, the caution 
     } finally {
       await session.close();
     }
+  }
+});
+
+test('once loaded, the page works offline: a run starts, and a reload still opens it', { timeout: 180_000 }, async () => {
+  const session = await openChecked();
+  try {
+    const { page } = session;
+    // The service worker keeps the page's files once it controls the page.
+    await session.waitFor('the service worker to control the page', () => navigator.serviceWorker?.controller !== null, null, 30_000);
+    await session.setOffline(true);
+    await fillRunForm(page, { kernel: 'rwm', tuning: 'bo', chains: 2, draws: 200, warmup: 100, trials: 6, window: 30, seed: 4 });
+    await runAndWait(session);
+    assert.equal(JSON.parse(await downloadText(page, '#export-json')).complete, true);
+    await page.reload();
+    await session.waitFor('the page to load offline', () => document.getElementById('check-status').dataset.state === 'ok', null, 30_000);
+    await runAndWait(session);
+    await session.setOffline(false);
+  } finally {
+    await session.close();
   }
 });

@@ -5,11 +5,11 @@
 
 import 'uplot/dist/uPlot.min.css';
 import { createEditor, replaceText, showDiagnostic } from './editor.js';
-import { checkModel, comparisonConfigs, defaultConfig, makeLink, readLink, startEngine, startWorker } from './engine.js';
+import { checkModel, comparisonConfigs, defaultConfig, makeLink, readLink, startEngine } from './engine.js';
 import { markCurrentExample, showCheck, showEngineFailure, showGallery, showOutline } from './panels.js';
 import { progressView } from './progress.js';
 import { METHOD_NAMES, showResults } from './results.js';
-import { startJob } from './runner.js';
+import { prepareWorkers, startJob } from './runner.js';
 import { buildConfig, formFromConfig, initialValues, randomSeed, readForm, writeForm } from './settings.js';
 import {
   loadForm, loadText, loadTextBeforeLink, saveForm, saveText, saveTextBeforeLink,
@@ -275,6 +275,8 @@ async function main() {
       job = null;
       resultsArea.classList.remove('stale');
       refresh();
+      // Fresh workers for the next run, once the results are drawn.
+      setTimeout(prepare, 1000);
     }
     if (!outcome) return;
     shownResults?.destroy();
@@ -366,17 +368,15 @@ async function main() {
     if (engineReady) openLink();
   });
 
-  const worker = startWorker();
-  worker.request('ping').then(
-    ({ version }) => {
-      showEngineState('ready', `engine ${version} · worker ready`);
-      worker.stop();
-    },
+  // Workers with the engine loaded, waiting for the first run.
+  const prepare = () => prepareWorkers().then(
+    (version) => showEngineState('ready', `engine ${version} · worker ready`),
     (error) => {
-      console.error('mixwell: the engine worker did not answer', error);
+      console.error('mixwell: the engine workers did not answer', error);
       showEngineState('failed', 'worker failed');
     },
   );
+  prepare();
 
   try {
     await startEngine();
@@ -390,6 +390,13 @@ async function main() {
   check();
   openLink();
   refresh();
+}
+
+// Keep the page's files for offline use (www/sw.js); without it the page works as long as it is online.
+if ('serviceWorker' in navigator) {
+  navigator.serviceWorker.register(new URL('../sw.js', import.meta.url)).catch((error) => {
+    console.info('mixwell: the page will not work offline here', error);
+  });
 }
 
 main().catch((error) => {

@@ -4,17 +4,19 @@
 // ends a run early by terminating these workers.
 //
 // Messages in: `{ id, kind, ... }`; every answer carries the same `id`:
+//   { kind: 'ping' }                        → { kind: 'pong', version }
 //   { kind: 'open', source, seed, chains }  → { kind: 'opened' }   (chains: the chain indices held)
 //   { kind: 'perform', task }               → { kind: 'performed', outcomes }
 //        (one outcome per chain held, in index order; their rows are transferred)
 //   anything that goes wrong                → { kind: 'failed', message }
 
-import init, { ChainEngine } from '../pkg/mixwell.js';
+import init, { ChainEngine, version } from '../pkg/mixwell.js';
 
 const ready = init();
 let chains = [];
 
 const handlers = {
+  ping: () => ({ kind: 'pong', version: version() }),
   open: ({ source, seed, chains: indices }) => {
     for (const chain of chains) chain.free();
     chains = indices.map((index) => new ChainEngine(source, seed, index));

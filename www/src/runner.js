@@ -1,7 +1,8 @@
 // Drives runs: the plan (a RunEngine) in the planning worker, the chains (ChainEngines) in one
 // chain worker per processor core. The main thread only relays: task → every chain → outcomes →
 // plan → next task. Cancelling terminates the chain workers at once; the plan then reports the
-// draws made so far, marked incomplete.
+// draws made so far, marked incomplete. A set of workers with the engine loaded waits between
+// runs, so that a run starts at once; each job uses up its set, and a fresh one is made after.
 
 import { Stopped, comparisonConfigs, startWorker } from './engine.js';
 
@@ -15,10 +16,39 @@ export function chainGroups(chains, workers) {
   return groups;
 }
 
+/** Processor cores this browser offers, at least one. */
+function cores() {
+  return Math.max(1, Math.floor(navigator.hardwareConcurrency || 2));
+}
+
 /** How many chain workers a run of `chains` chains gets: one per core, at most one per chain. */
 export function workerCount(chains) {
-  const cores = Math.max(1, Math.floor(navigator.hardwareConcurrency || 2));
-  return Math.max(1, Math.min(chains, cores));
+  return Math.max(1, Math.min(chains, cores()));
+}
+
+let spare = null;
+
+function spawnWorkers() {
+  const planner = startWorker('./worker.js', 'mixwell-plan');
+  const chains = Array.from({ length: cores() }, (_, w) => startWorker('./chain-worker.js', `mixwell-chains-${w + 1}`));
+  // A ping makes each worker load the engine now rather than when the run starts.
+  const ready = Promise.all([planner, ...chains].map((worker) => worker.request('ping')));
+  return { planner, chains, ready };
+}
+
+/**
+ * Have a set of workers ready for the next run (a planning worker and one chain worker per
+ * core). Resolves to the engine's version once they have all loaded it.
+ */
+export function prepareWorkers() {
+  spare ??= spawnWorkers();
+  return spare.ready.then(([pong]) => pong.version);
+}
+
+function takeWorkers() {
+  const set = spare ?? spawnWorkers();
+  spare = null;
+  return set;
 }
 
 /**
@@ -29,20 +59,17 @@ export function workerCount(chains) {
  * runs }`, where `finished` is what RunEngine.finish returns (with the comparison attached).
  */
 export function startJob({ source, config, compare, onProgress }) {
-  const planner = startWorker('./worker.js', 'mixwell-plan');
+  const { planner, chains: chainWorkers } = takeWorkers();
   let cancelled = false;
-  let chainWorkers = [];
 
   const stopChains = () => {
     for (const worker of chainWorkers) worker.stop();
-    chainWorkers = [];
   };
 
   // One run; resolves to { run, finished, seconds }.
   async function runOnce(runConfig, report) {
     const count = workerCount(runConfig.chains);
-    chainWorkers = Array.from({ length: count }, (_, w) => startWorker('./chain-worker.js', `mixwell-chains-${w + 1}`));
-    const workers = chainWorkers;
+    const workers = chainWorkers.slice(0, count);
     const groups = chainGroups(runConfig.chains, count);
     let run = null;
     let started = null;
@@ -69,8 +96,6 @@ export function startJob({ source, config, compare, onProgress }) {
       }
     } catch (error) {
       if (!(cancelled && error instanceof Stopped)) throw error;
-    } finally {
-      for (const worker of workers) worker.stop();
     }
     // Cancelled while the chains were starting: the plan is open all the same.
     if (run === null) ({ run } = await opening);
