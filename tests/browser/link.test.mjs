@@ -93,6 +93,29 @@ test('opening a link keeps the user\'s own text recoverable', { timeout: 120_000
   }
 });
 
+test('a link whose model does not read opens, shows the error, and cannot be started', { timeout: 90_000 }, async () => {
+  const session = await openChecked();
+  try {
+    const { page } = session;
+    // `mixwell link` refuses such a model, but a link is only text: make one with the page.
+    const broken = 'mu : real\ndensity = normal(mu; 0, 1) *\n';
+    const link = await page.evaluate(async (model) => {
+      const engine = await import('./pkg/mixwell.js');
+      await engine.default();
+      const config = engine.default_config('mu : real\ndensity = normal(mu; 0, 1)\n', 'rwm', 'bo', 12);
+      return engine.make_link(model, config, location.origin + location.pathname);
+    }, broken);
+    await page.goto(link);
+    await session.waitFor('the shared run to open', () => document.getElementById('link-banner').dataset.kind === 'ok');
+    assert.equal(await editorText(page), broken);
+    await session.waitFor('the error to show', () => document.getElementById('check-status').dataset.state === 'error');
+    assert.equal(await page.isDisabled('#start'), true);
+    assert.equal(await page.inputValue('#seed'), '12');
+  } finally {
+    await session.close();
+  }
+});
+
 test('damaged, cut-short and oversized links show a clear error and load nothing', { timeout: 120_000 }, async () => {
   const session = await openChecked();
   try {

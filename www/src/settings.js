@@ -50,7 +50,11 @@ export function writeForm(form, values) {
   }
 }
 
-/** The form values that reproduce `config` (from a link), and whether the form can hold it all. */
+/**
+ * The form values that reproduce `config` (from a link), and whether the form can hold it all.
+ * `defaults(kind)` is the default configuration for the link's model (it throws when the model
+ * does not read).
+ */
 export function formFromConfig(config, defaults) {
   const { settings, tuning } = config;
   const values = {
@@ -60,8 +64,14 @@ export function formFromConfig(config, defaults) {
   let fits = settings.kind === 'rwm' || settings.kind === 'slice';
   if (fits) {
     values.kernel = settings.kind;
-    const standard = defaults(settings.kind).settings.settings;
-    const own = Object.keys(standard).some((key) => settings.settings[key] !== standard[key]);
+    // A model that does not read has no defaults to compare with: show the setting as given.
+    let standard = null;
+    try {
+      standard = defaults(settings.kind).settings.settings;
+    } catch {
+      standard = null;
+    }
+    const own = standard === null || Object.keys(standard).some((key) => settings.settings[key] !== standard[key]);
     values.own = own;
     for (const [key, value] of Object.entries(settings.settings)) values[key] = own ? String(value) : '';
   }
