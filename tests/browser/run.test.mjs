@@ -4,11 +4,12 @@
 // Also: a comparison of methods, cancelling, a model that does not read, and the plots' exports.
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
+import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import {
-  downloadBytes, downloadText, exampleFiles, fillRunForm, mixwell, openChecked, replaceEditorText, runAndWait,
+  MIXWELL_BIN, downloadBytes, downloadText, exampleFiles, fillRunForm, mixwell, openChecked, replaceEditorText, runAndWait,
 } from './harness.mjs';
 
 // Small budgets, so that each run takes a second or two; each example also tries another part of
@@ -158,6 +159,28 @@ test('a model that does not read cannot be started and says where the error is',
     await page.waitForTimeout(300);
     assert.equal(await page.$eval('#progress', (el) => el.hidden), true, 'no run started');
     await session.screenshot('cannot-start');
+  } finally {
+    await session.close();
+  }
+});
+
+test('a run whose chains cannot start says why, and the page stays usable', { timeout: 90_000 }, async () => {
+  const session = await openChecked();
+  try {
+    const { page } = session;
+    // The sd underflows to zero everywhere, so no starting point has a finite density.
+    const model = 'x : real\n\ndensity = normal(x; 0, exp(-1000 - x^2))\n';
+    await replaceEditorText(page, model);
+    await session.waitFor('the model to read cleanly', () => document.getElementById('check-status').dataset.state === 'ok');
+    await fillRunForm(page, { tuning: 'none', chains: 2, draws: 100, seed: 1 });
+    const cli = spawnSync(MIXWELL_BIN, ['run', '-', '--tune', 'none', '--chains', '2', '--draws', '100', '--seed', '1', '--quiet'], { input: model, encoding: 'utf8' });
+    assert.equal(cli.status, 2, 'the command line refuses the run too');
+    await page.click('#start');
+    await session.waitFor('the failure to be reported', () => /could not go on/.test(document.getElementById('run-status').textContent), null, 30_000);
+    const status = await page.textContent('#run-status');
+    assert.ok(status.includes(cli.stderr.trim()), `the page says what the command line says: ${status}`);
+    assert.equal(await page.isDisabled('#start'), false, 'another run can be started');
+    assert.equal(await page.$eval('#results', (el) => el.hidden), true, 'no results were made up');
   } finally {
     await session.close();
   }

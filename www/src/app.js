@@ -263,20 +263,23 @@ async function main() {
     refresh();
     let outcome = null;
     let seconds = 0;
+    let failure = null;
     try {
       outcome = await job.done;
       seconds = progress.end(outcome.cancelled ? 'Stopped — showing the draws made so far' : 'Finished');
     } catch (error) {
       progress.end('Failed');
-      console.warn('mixwell: the run failed', error);
-      runStatus.textContent = `The run could not go on: ${error.message}`;
-      runStatus.dataset.state = 'problem';
+      failure = error;
     } finally {
       job = null;
       resultsArea.classList.remove('stale');
       refresh();
       // Fresh workers for the next run, once the results are drawn.
       setTimeout(prepare, 1000);
+    }
+    if (failure) {
+      runStatus.textContent = `The run could not go on: ${failure.message}`;
+      runStatus.dataset.state = 'problem';
     }
     if (!outcome) return;
     shownResults?.destroy();

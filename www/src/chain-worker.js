@@ -8,7 +8,8 @@
 //   { kind: 'open', source, seed, chains }  → { kind: 'opened' }   (chains: the chain indices held)
 //   { kind: 'perform', task }               → { kind: 'performed', outcomes }
 //        (one outcome per chain held, in index order; their rows are transferred)
-//   anything that goes wrong                → { kind: 'failed', message }
+//   anything that goes wrong                → { kind: 'failed', message, chain }
+//        (chain: the index of the chain that could not start, when that is what went wrong)
 
 import init, { ChainEngine, version } from '../pkg/mixwell.js';
 
@@ -19,7 +20,16 @@ const handlers = {
   ping: () => ({ kind: 'pong', version: version() }),
   open: ({ source, seed, chains: indices }) => {
     for (const chain of chains) chain.free();
-    chains = indices.map((index) => new ChainEngine(source, seed, index));
+    chains = [];
+    for (const index of indices) {
+      try {
+        chains.push(new ChainEngine(source, seed, index));
+      } catch (error) {
+        // Say which chain failed, so that the page can report the first, as the command line does.
+        error.chain = index;
+        throw error;
+      }
+    }
     return { kind: 'opened' };
   },
   perform: ({ task }) => {
@@ -38,6 +48,6 @@ self.onmessage = async ({ data }) => {
     const [message, transfer] = Array.isArray(answer) ? answer : [answer, []];
     self.postMessage({ id, ...message }, transfer);
   } catch (error) {
-    self.postMessage({ id, kind: 'failed', message: String(error?.message ?? error) });
+    self.postMessage({ id, kind: 'failed', message: String(error?.message ?? error), chain: error?.chain });
   }
 };

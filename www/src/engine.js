@@ -43,7 +43,7 @@ export class Stopped extends Error {
 /**
  * Start a module worker from `file` (next to this bundle). `request(kind, fields, transfer)`
  * posts `{ id, kind, ...fields }` and resolves with the worker's answer; an answer of kind
- * `failed` rejects with its message. `stop()` terminates the worker and rejects what is pending.
+ * `failed` rejects with its message (and its `chain`, if any). `stop()` terminates the worker and rejects what is pending.
  */
 export function startWorker(file = './worker.js', name = 'mixwell-engine') {
   const worker = new Worker(new URL(file, import.meta.url), { type: 'module', name });
@@ -58,7 +58,7 @@ export function startWorker(file = './worker.js', name = 'mixwell-engine') {
     const waiting = pending.get(data.id);
     if (!waiting) return;
     pending.delete(data.id);
-    if (data.kind === 'failed') waiting.reject(new Error(data.message));
+    if (data.kind === 'failed') waiting.reject(Object.assign(new Error(data.message), { chain: data.chain }));
     else waiting.resolve(data);
   });
   worker.addEventListener('error', (event) => {

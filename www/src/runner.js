@@ -76,10 +76,16 @@ export function startJob({ source, config, compare, onProgress }) {
     let seconds = 0;
     const opening = planner.request('open', { source, config: runConfig, lags: LAGS });
     try {
-      await Promise.all([
+      const opened = await Promise.allSettled([
         opening,
         ...workers.map((worker, w) => worker.request('open', { source, seed: runConfig.seed, chains: groups[w] })),
       ]);
+      // The plan's complaint first, then the lowest chain's, as the command line reports them.
+      const failures = opened.filter((o) => o.status === 'rejected').map((o) => o.reason);
+      if (failures.length > 0) {
+        const rank = (error) => (error.chain === undefined ? -1 : error.chain);
+        throw failures.reduce((first, error) => (rank(error) < rank(first) ? error : first));
+      }
       let task, progress;
       ({ run, task, progress } = await opening);
       report(progress);
