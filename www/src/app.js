@@ -20,6 +20,14 @@ const CHECK_DELAY_MS = 250;
 
 const $ = (id) => document.getElementById(id);
 
+/** What the user's own kernel setting is for, under each tuning method. */
+const OWN_SETTING_NOTES = {
+  bo: 'Bayesian optimisation searches its own range; your setting is the baseline when methods are compared.',
+  rm: 'Robbins–Monro starts from your setting.',
+  am: 'Adaptive Metropolis starts from your setting.',
+  none: 'The chains sample with exactly this setting.',
+};
+
 function h(tag, props = {}, ...children) {
   const element = Object.assign(document.createElement(tag), props);
   element.append(...children.filter((c) => c !== null && c !== undefined));
@@ -159,16 +167,17 @@ async function main() {
     if (form.elements.tuning.selectedOptions[0]?.disabled) form.elements.tuning.value = 'bo';
     const advanced = form.elements.tuning.value === 'none';
     for (const name of ['trials', 'window', 'score', 'freeze']) form.elements[name].disabled = advanced && !values.compare;
-    const defaults = lastCheck?.ok ? defaultsFor(values.kernel).settings.settings : null;
+    let defaults = null;
+    try {
+      // The text may have changed since the last check; then there are no defaults to show yet.
+      defaults = lastCheck?.ok ? defaultsFor(values.kernel).settings.settings : null;
+    } catch {
+      defaults = null;
+    }
     for (const [key, value] of Object.entries(defaults ?? {})) form.elements[key].placeholder = Number(value.toPrecision(4)).toString();
     const method = form.elements.tuning.value;
     ownNote.hidden = !values.own;
-    ownNote.textContent = !values.own ? '' : {
-        bo: 'Bayesian optimisation searches its own range; your setting is the baseline when methods are compared.',
-        rm: 'Robbins–Monro starts from your setting.',
-        am: 'Adaptive Metropolis starts from your setting.',
-        none: 'The chains sample with exactly this setting.',
-      }[method];
+    ownNote.textContent = values.own ? OWN_SETTING_NOTES[method] : '';
   };
 
   const currentConfig = () => pinned ?? buildConfig(text(), readForm(form));
@@ -218,9 +227,13 @@ async function main() {
   form.addEventListener('input', (event) => {
     if (event.target.name === 'own' && event.target.checked && lastCheck?.ok) {
       // Start the user's own setting from the default, so there is something to edit.
-      const defaults = defaultsFor(readForm(form).kernel).settings.settings;
-      for (const [key, value] of Object.entries(defaults)) {
-        if (form.elements[key].value.trim() === '') form.elements[key].value = String(value);
+      try {
+        const defaults = defaultsFor(readForm(form).kernel).settings.settings;
+        for (const [key, value] of Object.entries(defaults)) {
+          if (form.elements[key].value.trim() === '') form.elements[key].value = String(value);
+        }
+      } catch {
+        // The text does not read just now; the fields stay empty for the user to fill.
       }
     }
     pinned = null;
@@ -296,6 +309,9 @@ async function main() {
 
   form.addEventListener('submit', (event) => {
     event.preventDefault();
+    // Text typed within the checking delay is checked now, so that what runs is what is shown.
+    clearTimeout(timer);
+    check();
     if (startButton.disabled) return;
     start(text(), currentConfig());
   });
