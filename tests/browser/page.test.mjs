@@ -141,6 +141,26 @@ test('picking an example replaces the text, and undo brings the text back', { ti
   }
 });
 
+test('text replaced by an example can be brought back, even after a reload', { timeout: 90_000 }, async () => {
+  const session = await openChecked();
+  try {
+    const { page } = session;
+    assert.equal(await page.isHidden('#recover'), true, 'nothing to bring back at first');
+    const own = '# mine\nmu : real\n\ndensity = normal(mu; 3, 1)\n';
+    await replaceEditorText(page, own);
+    await page.click('button[data-example="orchard"]');
+    await page.reload();
+    await session.waitFor('the page after the reload', () => document.getElementById('check-status').dataset.state === 'ok');
+    assert.equal(await editorText(page), exampleFiles().find((e) => e.file === 'orchard.mw').source);
+    await page.click('#recover');
+    assert.equal(await editorText(page), own, 'the user\'s text is back');
+    // The example it replaced was not the user's, so there is nothing further to bring back.
+    assert.equal(await page.isHidden('#recover'), true);
+  } finally {
+    await session.close();
+  }
+});
+
 test('the engine worker answers a ping and a check', { timeout: 90_000 }, async () => {
   const session = await openChecked();
   try {

@@ -12,7 +12,7 @@ import { METHOD_NAMES, showResults } from './results.js';
 import { prepareWorkers, startJob } from './runner.js';
 import { buildConfig, formFromConfig, initialValues, randomSeed, readForm, writeForm } from './settings.js';
 import {
-  loadForm, loadText, loadTextBeforeLink, saveForm, saveText, saveTextBeforeLink,
+  loadForm, loadReplacedText, loadText, saveForm, saveReplacedText, saveText,
 } from './storage.js';
 
 // Long enough not to check on every keystroke of a word, short enough to feel immediate.
@@ -130,26 +130,52 @@ async function main() {
     onChange(current) {
       if (!saveText(current)) notice.textContent = 'This browser is not keeping your text; copy it somewhere safe.';
       markCurrentExample(gallery, examples, current);
+      showRecover();
       clearTimeout(timer);
       timer = setTimeout(check, CHECK_DELAY_MS);
     },
   });
   if (saved === null) saveText(text());
 
+  // The user's own text, when an example or a link replaces it, is kept (and survives a reload)
+  // until the next replacement; the button above the editor brings it back.
+  const recoverButton = $('recover');
+  const isOwnText = (candidate) => candidate.trim() !== '' && !examples.some((e) => e.source === candidate);
+  const keepReplaced = (before) => {
+    if (isOwnText(before)) saveReplacedText(before);
+  };
+  const showRecover = () => {
+    const kept = loadReplacedText();
+    recoverButton.hidden = kept === null || kept === text();
+  };
+  recoverButton.addEventListener('click', () => {
+    const kept = loadReplacedText();
+    if (kept === null) return;
+    // A swap: the text now in the editor is kept in turn, if it is the user's own.
+    keepReplaced(text());
+    replaceText(view, kept);
+    clearTimeout(timer);
+    check();
+    banner.hidden = true;
+    view.focus();
+  });
+
   showGallery(gallery, examples, (example) => {
     const before = text();
     if (before === example.source) return;
     const wasAnExample = examples.some((e) => e.source === before);
+    keepReplaced(before);
     replaceText(view, example.source);
     // A chosen example is checked at once, not after the typing delay.
     clearTimeout(timer);
     check();
     notice.textContent = wasAnExample || before.trim() === ''
       ? `Loaded “${example.title}”.`
-      : `Loaded “${example.title}”. Your previous text is one undo away (Ctrl+Z).`;
+      : `Loaded “${example.title}”. Your previous text is one undo away (Ctrl+Z), and kept: “Bring back your earlier text” above the editor.`;
     view.focus();
   });
   markCurrentExample(gallery, examples, text());
+  showRecover();
 
   // The form: how it looks follows what is chosen; every change is kept.
   const ownNote = $('own-note');
@@ -353,7 +379,7 @@ async function main() {
     const before = text();
     const replaced = before !== shared.model;
     if (replaced) {
-      saveTextBeforeLink(before);
+      keepReplaced(before);
       replaceText(view, shared.model);
       clearTimeout(timer);
       check();
@@ -375,11 +401,8 @@ async function main() {
           banner.hidden = true;
           form.requestSubmit();
         }, 'primary'),
-        replaced ? button('Bring back my previous text', () => {
-          replaceText(view, loadTextBeforeLink() ?? before);
-          banner.hidden = true;
-          clearTimeout(timer);
-          check();
+        replaced && isOwnText(before) ? button('Bring back my previous text', () => {
+          recoverButton.click();
         }) : null),
       fits ? null : h('span', { className: 'banner-note' }, ' Some of its settings cannot be shown in the form; they are used until you change the form.'));
   };

@@ -1,11 +1,11 @@
 // What this browser keeps (localStorage) so that it survives a reload: the model text, the run
-// form, and the text a shared link replaced. Storage can be switched off or full; then the page
+// form, and the user's text that an example or a shared link replaced. Storage can be switched off or full; then the page
 // still works and says the text is not being kept.
 
 const KEYS = {
   text: 'mixwell.model-text.v1',
   form: 'mixwell.run-form.v1',
-  beforeLink: 'mixwell.text-before-link.v1',
+  replaced: 'mixwell.replaced-text.v1',
 };
 
 function load(key) {
@@ -42,6 +42,6 @@ export function loadForm() {
 }
 export const saveForm = (values) => save(KEYS.form, JSON.stringify(values));
 
-/** The user's text from before a shared link replaced it, or null. */
-export const loadTextBeforeLink = () => load(KEYS.beforeLink);
-export const saveTextBeforeLink = (text) => save(KEYS.beforeLink, text);
+/** The user's text from before an example or a shared link replaced it, or null. */
+export const loadReplacedText = () => load(KEYS.replaced);
+export const saveReplacedText = (text) => save(KEYS.replaced, text);
