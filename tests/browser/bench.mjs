@@ -9,7 +9,7 @@
 // The run: the page's defaults — 4 chains, a 200-sweep pilot, Bayesian optimisation with 100
 // trials of 100 steps, 1,000 warm-up steps, 1,000 draws — with seed 1.
 import { spawnSync } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { readFileSync, readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { ROOT, requireBuilt, serveWww } from './serve.mjs';
 
@@ -24,6 +24,31 @@ process.env.MIXWELL_BIN = bin;
 const { openChecked, fillRunForm, replaceEditorText, runAndWait, downloadText } = await import('./harness.mjs');
 
 const median = (xs) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
+
+// CPU seconds (user + system) used so far by every process whose command line names `marker`
+// (the browser's profile folder), read from /proc; clock ticks are 1/100 s on Linux.
+function cpuSeconds(marker) {
+  let ticks = 0;
+  for (const pid of readdirSync('/proc').filter((name) => /^\d+$/.test(name))) {
+    try {
+      if (!readFileSync(`/proc/${pid}/cmdline`, 'utf8').includes(marker)) continue;
+      const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
+      ticks += Number(fields[11]) + Number(fields[12]);
+    } catch {
+      // the process ended meanwhile
+    }
+  }
+  return ticks / 100;
+}
+
+/** Wall-clock and CPU seconds of `mixwell run --link link`, and its standard output. */
+function nativeRun(link) {
+  const script = 'TIMEFORMAT="%R %U %S"; { time "$0" run --link "$1" --quiet --json - ; } 2> >(tail -1 >&2)';
+  const result = spawnSync('bash', ['-c', script, bin, link], { encoding: 'utf8', maxBuffer: 1 << 28 });
+  if (result.status !== 0) throw new Error(`mixwell run failed: ${result.stderr}`);
+  const [real, user, sys] = result.stderr.trim().split(/\s+/).slice(-3).map(Number);
+  return { seconds: real, cpu: user + sys, json: result.stdout };
+}
 const rows = [];
 let failed = false;
 for (const model of MODELS) {
@@ -38,27 +63,30 @@ for (const model of MODELS) {
     // Page and native runs alternate, so that both meet the same load on a shared machine.
     const pageTimes = [];
     const nativeTimes = [];
+    const pageCpu = [];
+    const nativeCpu = [];
     let pageJson = null;
     let nativeJson = null;
     for (let run = 0; run <= RUNS; run++) {
+      const cpuBefore = cpuSeconds(session.profile);
       await runAndWait(session, { timeout: 600_000 });
+      const cpu = cpuSeconds(session.profile) - cpuBefore;
       const pageSeconds = Number(await page.$eval('#results', (el) => el.dataset.seconds));
       pageJson ??= await downloadText(page, '#export-json');
       // Let the page finish drawing and make its next workers before the native run.
       await page.waitForTimeout(1500);
-      const started = performance.now();
-      const result = spawnSync(bin, ['run', '--link', link, '--quiet', '--json', '-'], { encoding: 'utf8', maxBuffer: 1 << 28 });
-      const nativeSeconds = (performance.now() - started) / 1000;
-      if (result.status !== 0) throw new Error(`mixwell run failed: ${result.stderr}`);
-      nativeJson ??= result.stdout;
+      const native = nativeRun(link);
+      nativeJson ??= native.json;
       if (run > 0) {
         pageTimes.push(pageSeconds);
-        nativeTimes.push(nativeSeconds);
+        nativeTimes.push(native.seconds);
+        pageCpu.push(cpu);
+        nativeCpu.push(native.cpu);
       }
     }
     const same = pageJson === nativeJson;
     if (!same) failed = true;
-    rows.push({ model, pageTimes, nativeTimes, same });
+    rows.push({ model, pageTimes, nativeTimes, pageCpu, nativeCpu, same });
   } finally {
     await session.close();
   }
@@ -75,7 +103,15 @@ for (const { model, pageTimes, nativeTimes, same } of rows) {
     + `  ${Math.min(...nativeTimes).toFixed(2).padStart(11)}  ${median(nativeTimes).toFixed(2).padStart(13)}`
     + `  ${ratio.toFixed(2).padStart(13)}×  ${paired.toFixed(2).padStart(11)}×  ${same ? 'yes' : 'NO'}`);
 }
-console.log('Target: the page within 1.5× of native. Page times run from Start to the last answer of the workers.');
+// Wall-clock time on a busy machine also measures how the system shares its cores (four native
+// threads get more of them than two workers); CPU time measures the work itself.
+console.log('\nCPU seconds (user + system; the page: every Chromium process, drawing included)');
+console.log('model                      page median  native median  ratio');
+for (const { model, pageCpu, nativeCpu } of rows) {
+  console.log(`${model.padEnd(26)} ${median(pageCpu).toFixed(2).padStart(11)}  ${median(nativeCpu).toFixed(2).padStart(13)}`
+    + `  ${(median(pageCpu) / median(nativeCpu)).toFixed(2).padStart(5)}×`);
+}
+console.log('Target: the page within 1.5× of native. Page wall-clock times run from Start to the last answer of the workers.');
 if (failed) {
   console.error('the page and the command line disagreed on a report');
   process.exit(1);

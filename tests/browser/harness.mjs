@@ -81,6 +81,8 @@ export async function openPage({ viewport = { width: 1280, height: 800 } } = {})
   return {
     page,
     context,
+    /** The browser's profile folder (every Chromium process of this session names it). */
+    profile,
     /** Take the browser off the network, or back on. */
     async setOffline(value) {
       offline = value;

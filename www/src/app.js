@@ -313,8 +313,8 @@ async function main() {
       job = null;
       resultsArea.classList.remove('stale');
       refresh();
-      // Fresh workers for the next run, once the results are drawn.
-      setTimeout(prepare, 1000);
+      // Workers for the next run in place of any that were stopped, once the results are drawn.
+      setTimeout(prepare, 500);
     }
     if (failure) {
       runStatus.textContent = `The run could not go on: ${failure.message}`;

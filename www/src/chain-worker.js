@@ -4,7 +4,7 @@
 // ends a run early by terminating these workers.
 //
 // Messages in: `{ id, kind, ... }`; every answer carries the same `id`:
-//   { kind: 'ping' }                        → { kind: 'pong', version }
+//   { kind: 'ping', module }                        → { kind: 'pong', version }
 //   { kind: 'open', source, seed, chains }  → { kind: 'opened' }   (chains: the chain indices held)
 //   { kind: 'perform', task }               → { kind: 'performed', outcomes }
 //        (one outcome per chain held, in index order; their rows are transferred)
@@ -13,7 +13,9 @@
 
 import init, { ChainEngine, version } from '../pkg/mixwell.js';
 
-const ready = init();
+// The engine loads on the first message, from the compiled module it carries (`module`, shared
+// with the page) or, without one, from the file next to the bindings.
+let ready = null;
 let chains = [];
 
 const handlers = {
@@ -41,6 +43,7 @@ const handlers = {
 self.onmessage = async ({ data }) => {
   const id = data?.id;
   try {
+    ready ??= init(data?.module ? { module_or_path: data.module } : undefined);
     await ready;
     const handle = handlers[data?.kind];
     if (!handle) throw new Error(`unknown request kind ${JSON.stringify(data?.kind)}`);

@@ -1,10 +1,12 @@
 // Drives runs: the plan (a RunEngine) in the planning worker, the chains (ChainEngines) in one
 // chain worker per processor core. The main thread only relays: task → every chain → outcomes →
 // plan → next task. Cancelling terminates the chain workers at once; the plan then reports the
-// draws made so far, marked incomplete. A set of workers with the engine loaded waits between
-// runs, so that a run starts at once; each job uses up its set, and a fresh one is made after.
+// draws made so far, marked incomplete. The workers stay between runs, with the engine loaded and
+// the browser's optimised code for its hot parts (a fresh worker runs its first second or so
+// slower), so a run starts at once and at full speed; only workers that were stopped or that
+// failed are replaced.
 
-import { Stopped, comparisonConfigs, startWorker } from './engine.js';
+import { Stopped, comparisonConfigs, engineModule, startWorker } from './engine.js';
 
 /** Autocorrelation is reported to this lag, as `mixwell run` does by default (its --lags). */
 export const LAGS = 20;
@@ -26,29 +28,46 @@ export function workerCount(chains) {
   return Math.max(1, Math.min(chains, cores()));
 }
 
-let spare = null;
-
-function spawnWorkers() {
-  const planner = startWorker('./worker.js', 'mixwell-plan');
-  const chains = Array.from({ length: cores() }, (_, w) => startWorker('./chain-worker.js', `mixwell-chains-${w + 1}`));
-  // A ping makes each worker load the engine now rather than when the run starts.
-  const ready = Promise.all([planner, ...chains].map((worker) => worker.request('ping')));
-  return { planner, chains, ready };
-}
+// The workers kept between runs: the planning worker and the chain workers (null until made).
+const crew = { planner: null, chains: [], ready: null };
 
 /**
- * Have a set of workers ready for the next run (a planning worker and one chain worker per
- * core). Resolves to the engine's version once they have all loaded it.
+ * Have the workers ready for the next run — a planning worker and one chain worker per core —
+ * making those that are missing. Resolves to the engine's version once they have all loaded it.
  */
 export function prepareWorkers() {
-  spare ??= spawnWorkers();
-  return spare.ready.then(([pong]) => pong.version);
+  const made = [];
+  if (!crew.planner) {
+    crew.planner = startWorker('./worker.js', 'mixwell-plan');
+    made.push(crew.planner);
+  }
+  while (crew.chains.length < cores()) {
+    const worker = startWorker('./chain-worker.js', `mixwell-chains-${crew.chains.length + 1}`);
+    crew.chains.push(worker);
+    made.push(worker);
+  }
+  if (made.length > 0 || !crew.ready) {
+    // A ping makes each new worker load the engine now rather than when a run starts; it
+    // carries the page's compiled engine, so that all share one compilation.
+    crew.ready = engineModule()
+      .then((module) => Promise.all(made.map((worker) => worker.request('ping', { module }))))
+      .then(() => crew.planner.request('ping'))
+      .then((pong) => pong.version);
+  }
+  return crew.ready;
 }
 
-function takeWorkers() {
-  const set = spare ?? spawnWorkers();
-  spare = null;
-  return set;
+/** Stop the chain workers (they are made again for the next run). */
+function dismissChains() {
+  for (const worker of crew.chains) worker.stop();
+  crew.chains = [];
+}
+
+/** Stop every worker (after a failure, when their state cannot be trusted). */
+function dismissAll() {
+  dismissChains();
+  crew.planner?.stop();
+  crew.planner = null;
 }
 
 /**
@@ -59,12 +78,11 @@ function takeWorkers() {
  * runs }`, where `finished` is what RunEngine.finish returns (with the comparison attached).
  */
 export function startJob({ source, config, compare, onProgress }) {
-  const { planner, chains: chainWorkers } = takeWorkers();
   let cancelled = false;
-
-  const stopChains = () => {
-    for (const worker of chainWorkers) worker.stop();
-  };
+  let planner = null;
+  let chainWorkers = [];
+  // The plans opened in the planning worker, closed when the job ends.
+  const opened = new Set();
 
   // One run; resolves to { run, finished, seconds }.
   async function runOnce(runConfig, report) {
@@ -76,18 +94,19 @@ export function startJob({ source, config, compare, onProgress }) {
     let seconds = 0;
     const opening = planner.request('open', { source, config: runConfig, lags: LAGS });
     try {
-      const opened = await Promise.allSettled([
+      const settled = await Promise.allSettled([
         opening,
         ...workers.map((worker, w) => worker.request('open', { source, seed: runConfig.seed, chains: groups[w] })),
       ]);
       // The plan's complaint first, then the lowest chain's, as the command line reports them.
-      const failures = opened.filter((o) => o.status === 'rejected').map((o) => o.reason);
+      const failures = settled.filter((o) => o.status === 'rejected').map((o) => o.reason);
       if (failures.length > 0) {
         const rank = (error) => (error.chain === undefined ? -1 : error.chain);
         throw failures.reduce((first, error) => (rank(error) < rank(first) ? error : first));
       }
       let task, progress;
       ({ run, task, progress } = await opening);
+      opened.add(run);
       report(progress);
       while (task !== null && !cancelled) {
         const answers = await Promise.all(workers.map((worker) => worker.request('perform', { task })));
@@ -105,6 +124,7 @@ export function startJob({ source, config, compare, onProgress }) {
     }
     // Cancelled while the chains were starting: the plan is open all the same.
     if (run === null) ({ run } = await opening);
+    opened.add(run);
     if (cancelled && started !== null) seconds = (performance.now() - started) / 1000;
     const { finished } = await planner.request('finish', { run, seconds });
     return { run, finished, seconds };
@@ -112,6 +132,9 @@ export function startJob({ source, config, compare, onProgress }) {
 
   async function drive() {
     const configs = compare ? comparisonConfigs(config) : [config];
+    // Workers stopped by an earlier cancel are made again, and the engine loaded in them.
+    await prepareWorkers();
+    ({ planner, chains: chainWorkers } = crew);
     const chosen = configs.findIndex((c) => c.tuning.method === config.tuning.method);
     if (chosen < 0) throw new Error('the chosen tuning method is not among the methods compared');
     const rows = [];
@@ -124,7 +147,6 @@ export function startJob({ source, config, compare, onProgress }) {
       }
       rows.push(outcome.finished.comparison);
       if (i === chosen) primary = outcome;
-      else await planner.request('close', { run: outcome.run });
     }
     if (compare) {
       const attached = await planner.request('attach', { run: primary.run, rows });
@@ -137,17 +159,26 @@ export function startJob({ source, config, compare, onProgress }) {
     };
   }
 
-  const done = drive().finally(() => {
-    stopChains();
-    planner.stop();
-  });
+  const done = drive().then(
+    async (outcome) => {
+      // The reports are the page's now; the plans can go.
+      await Promise.all([...opened].map((run) => planner.request('close', { run })));
+      if (cancelled) dismissChains();
+      return outcome;
+    },
+    (error) => {
+      if (cancelled) dismissChains();
+      else dismissAll();
+      throw error;
+    },
+  );
   return {
     done,
     /** Stop now: the chain workers end at once; `done` then resolves with the draws so far. */
     cancel() {
       if (cancelled) return;
       cancelled = true;
-      stopChains();
+      for (const worker of chainWorkers) worker.stop();
     },
   };
 }

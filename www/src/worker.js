@@ -3,7 +3,7 @@
 // them. The chains themselves run in chain-worker.js; the page carries the messages between.
 //
 // Messages in: `{ id, kind, ... }`; every answer carries the same `id`:
-//   { kind: 'ping' }                          → { kind: 'pong', version }
+//   { kind: 'ping', module }                          → { kind: 'pong', version }
 //   { kind: 'check', source }                 → { kind: 'checked', result }  (as from check_model)
 //   { kind: 'open', source, config, lags }    → { kind: 'opened', run, task, progress }
 //   { kind: 'step', run, outcomes }           → { kind: 'stepped', task, progress }
@@ -16,7 +16,9 @@
 
 import init, { RunEngine, check_model, version } from '../pkg/mixwell.js';
 
-const ready = init();
+// The engine loads on the first message, from the compiled module it carries (`module`, shared
+// with the page) or, without one, from the file next to the bindings.
+let ready = null;
 const runs = new Map();
 let nextRun = 1;
 
@@ -58,6 +60,7 @@ const handlers = {
 self.onmessage = async ({ data }) => {
   const id = data?.id;
   try {
+    ready ??= init(data?.module ? { module_or_path: data.module } : undefined);
     await ready;
     const handle = handlers[data?.kind];
     if (!handle) throw new Error(`unknown request kind ${JSON.stringify(data?.kind)}`);
