@@ -22,9 +22,8 @@ export function startEngine() {
 }
 
 /**
- * The compiled engine, for workers (a WebAssembly.Module crosses postMessage). Workers given it
- * share one compilation with the page, and the optimised code that the browser makes of the hot
- * parts as they run, so a fresh worker runs at full speed at once.
+ * The compiled engine, for workers (a WebAssembly.Module crosses postMessage): workers given it
+ * need not fetch and compile the module again.
  */
 export async function engineModule() {
   await startEngine();
