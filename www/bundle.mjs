@@ -21,7 +21,11 @@ const keepBindingsExternal = {
 };
 
 await esbuild.build({
-  entryPoints: { app: join(www, 'src/app.js'), worker: join(www, 'src/worker.js') },
+  entryPoints: {
+    app: join(www, 'src/app.js'),
+    worker: join(www, 'src/worker.js'),
+    'chain-worker': join(www, 'src/chain-worker.js'),
+  },
   outdir: out,
   bundle: true,
   format: 'esm',
@@ -54,4 +58,4 @@ const examples = readdirSync(examplesDir)
   });
 if (examples.length === 0) throw new Error('no examples/*.mw found');
 writeFileSync(join(out, 'examples.json'), JSON.stringify(examples, null, 1) + '\n');
-console.log(`www/bundle.mjs: bundled app.js and worker.js, wrote ${examples.length} examples`);
+console.log(`www/bundle.mjs: bundled app.js (+ app.css), worker.js and chain-worker.js, wrote ${examples.length} examples`);

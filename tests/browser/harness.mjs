@@ -3,6 +3,7 @@
 // console error or warning, any uncaught error, any failed or non-2xx request, and any request
 // outside the page's own origin (the page must load nothing from elsewhere).
 import { chromium } from 'playwright-core';
+import { spawnSync } from 'node:child_process';
 import { mkdtemp, rm } from 'node:fs/promises';
 import { mkdirSync, readFileSync, readdirSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -14,6 +15,8 @@ export const ARTIFACTS = join(ROOT, 'tests', 'artifacts');
 
 export const BASE_URL = process.env.MIXWELL_PAGE_URL;
 if (!BASE_URL) throw new Error('MIXWELL_PAGE_URL is not set; run the browser tests through tests/browser/run.mjs');
+/** The native command-line tool, built by `make test` before these tests. */
+export const MIXWELL_BIN = process.env.MIXWELL_BIN;
 
 // Flags per shared/TOOLCHAIN.md: without the networking ones Chromium keeps trying to reach
 // outside hosts, which this network refuses.
@@ -60,29 +63,46 @@ export async function openPage({ viewport = { width: 1280, height: 800 } } = {})
     if (url.startsWith('data:') || url.startsWith('blob:')) return;
     note(`[request] ${url}`, new URL(url).origin !== origin);
   });
-  context.on('requestfailed', (request) => note(`[request failed] ${request.url()}: ${request.failure()?.errorText}`, true));
+  // While the test has taken the browser offline, failed requests are expected.
+  let offline = false;
+  context.on('requestfailed', (request) => note(`[request failed] ${request.url()}: ${request.failure()?.errorText}`, !offline));
   context.on('response', (response) => {
     if (response.status() >= 400) note(`[response ${response.status()}] ${response.url()}`, true);
   });
-  const page = context.pages()[0] ?? (await context.newPage());
-  page.on('console', watchConsole('page'));
-  page.on('pageerror', (error) => note(`[page error] ${error.message}`, true));
-  page.on('worker', (worker) => worker.on('console', watchConsole('worker')));
+  const watch = (page) => {
+    page.on('console', watchConsole('page'));
+    page.on('pageerror', (error) => note(`[page error] ${error.message}`, true));
+    page.on('worker', (worker) => worker.on('console', watchConsole('worker')));
+    return page;
+  };
+  const page = watch(context.pages()[0] ?? (await context.newPage()));
 
   const explain = () => `\n--- browser messages ---\n${messages.join('\n') || '(none)'}\n---`;
   return {
     page,
-    /** Wait for `predicate` to hold in the page; on a timeout say what the browser said. */
-    async waitFor(description, predicate, arg, timeout = 15_000) {
+    context,
+    /** The browser's profile folder (every Chromium process of this session names it). */
+    profile,
+    /** Take the browser off the network, or back on. */
+    async setOffline(value) {
+      offline = value;
+      await context.setOffline(value);
+    },
+    /** Another tab in the same browser (same storage), watched like the first. */
+    async newPage() {
+      return watch(await context.newPage());
+    },
+    /** Wait for `predicate` to hold in the page (or `on`); on a timeout say what the browser said. */
+    async waitFor(description, predicate, arg, timeout = 15_000, on = page) {
       try {
-        return await page.waitForFunction(predicate, arg, { timeout });
+        return await on.waitForFunction(predicate, arg, { timeout });
       } catch (error) {
         throw new Error(`timed out waiting for ${description}: ${error.message.split('\n')[0]}${explain()}`);
       }
     },
-    async screenshot(name) {
+    async screenshot(name, { on = page, fullPage = false } = {}) {
       mkdirSync(ARTIFACTS, { recursive: true });
-      await page.screenshot({ path: join(ARTIFACTS, `${name}.png`) });
+      await on.screenshot({ path: join(ARTIFACTS, `${name}.png`), fullPage });
     },
     /** Close the browser; throws when anything went wrong in the page. */
     async close() {
@@ -119,4 +139,62 @@ export async function replaceEditorText(page, text) {
   await page.click('.cm-content');
   await page.keyboard.press('Control+A');
   await page.keyboard.insertText(text);
+}
+
+/**
+ * Run the command-line tool with `args` (a last argument `{ input }` is its standard input);
+ * returns its standard output, or throws with its standard error.
+ */
+export function mixwell(...args) {
+  if (!MIXWELL_BIN) throw new Error('MIXWELL_BIN is not set; run the browser tests through tests/browser/run.mjs');
+  const options = typeof args.at(-1) === 'object' ? args.pop() : {};
+  const result = spawnSync(MIXWELL_BIN, args, { encoding: 'utf8', maxBuffer: 256 << 20, input: options.input });
+  if (result.status !== 0) throw new Error(`mixwell ${args[0]} failed (${result.status}): ${result.stderr}`);
+  return result.stdout;
+}
+
+/**
+ * Fill the run form: any of kernel ('rwm' | 'slice'), tuning, own (boolean), scale, blend, width,
+ * stepout, chains, draws, warmup, seed, compare (boolean), trials, window, score, freeze, pilot.
+ */
+export async function fillRunForm(page, values) {
+  await page.evaluate(() => {
+    document.getElementById('advanced').open = true;
+  });
+  if (values.kernel) await page.check(`input[name="kernel"][value="${values.kernel}"]`);
+  if (values.tuning) await page.selectOption('#tuning', values.tuning);
+  if ('own' in values) await page.setChecked('#own', values.own);
+  if ('compare' in values) await page.setChecked('#compare', values.compare);
+  for (const name of ['scale', 'blend', 'width', 'stepout', 'chains', 'draws', 'warmup', 'seed', 'trials', 'window', 'pilot']) {
+    if (name in values) await page.fill(`#${name}`, String(values[name]));
+  }
+  for (const name of ['score', 'freeze']) {
+    if (name in values) await page.selectOption(`#${name}`, values[name]);
+  }
+}
+
+/** How many results the page has shown so far. */
+export function resultsShown(page) {
+  return page.$eval('#results', (el) => Number(el.dataset.shown ?? 0));
+}
+
+/** Press Start and wait until new results are shown (`timeout` ms at most). */
+export async function runAndWait(session, { on = session.page, timeout = 120_000 } = {}) {
+  const before = await resultsShown(on);
+  await on.click('#start');
+  await session.waitFor('the run to finish and its results to show',
+    (n) => Number(document.getElementById('results').dataset.shown ?? 0) > n
+      && !document.getElementById('start').disabled, before, timeout, on);
+}
+
+/** Click `selector` and return the text of the file it downloads. */
+export async function downloadText(page, selector) {
+  const [download] = await Promise.all([page.waitForEvent('download'), page.click(selector)]);
+  return readFileSync(await download.path(), 'utf8');
+}
+
+/** Click `selector` and return the bytes of the file it downloads, with the file's name. */
+export async function downloadBytes(page, selector) {
+  const [download] = await Promise.all([page.waitForEvent('download'), page.click(selector)]);
+  return { name: download.suggestedFilename(), bytes: readFileSync(await download.path()) };
 }

@@ -4,7 +4,7 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import {
-  crateVersion, editorText, exampleFiles, openChecked, openPage, replaceEditorText,
+  crateVersion, downloadText, editorText, exampleFiles, fillRunForm, openChecked, replaceEditorText, runAndWait,
 } from './harness.mjs';
 
 // Declarations `name : support` in model text, read with a regular expression here rather than by
@@ -141,6 +141,26 @@ test('picking an example replaces the text, and undo brings the text back', { ti
   }
 });
 
+test('text replaced by an example can be brought back, even after a reload', { timeout: 90_000 }, async () => {
+  const session = await openChecked();
+  try {
+    const { page } = session;
+    assert.equal(await page.isHidden('#recover'), true, 'nothing to bring back at first');
+    const own = '# mine\nmu : real\n\ndensity = normal(mu; 3, 1)\n';
+    await replaceEditorText(page, own);
+    await page.click('button[data-example="orchard"]');
+    await page.reload();
+    await session.waitFor('the page after the reload', () => document.getElementById('check-status').dataset.state === 'ok');
+    assert.equal(await editorText(page), exampleFiles().find((e) => e.file === 'orchard.mw').source);
+    await page.click('#recover');
+    assert.equal(await editorText(page), own, 'the user\'s text is back');
+    // The example it replaced was not the user's, so there is nothing further to bring back.
+    assert.equal(await page.isHidden('#recover'), true);
+  } finally {
+    await session.close();
+  }
+});
+
 test('the engine worker answers a ping and a check', { timeout: 90_000 }, async () => {
   const session = await openChecked();
   try {
@@ -211,5 +231,85 @@ test('the page fits a laptop screen and a phone, with the caution in view', { ti
     } finally {
       await session.close();
     }
+  }
+});
+
+test('the run settings survive a reload, and a new seed can be drawn', { timeout: 90_000 }, async () => {
+  const session = await openChecked();
+  try {
+    const { page } = session;
+    const chosen = { kernel: 'slice', tuning: 'none', own: true, width: '4.5', stepout: '7', chains: '3', draws: '777', warmup: '55', seed: '9876543210', compare: true, trials: '12', window: '34', score: 'acf', freeze: 'mixture', pilot: '66' };
+    await fillRunForm(page, chosen);
+    const read = () => page.evaluate(() => {
+      const form = document.getElementById('run-form');
+      const out = { kernel: form.querySelector('input[name="kernel"]:checked').value };
+      for (const name of ['tuning', 'width', 'stepout', 'chains', 'draws', 'warmup', 'seed', 'trials', 'window', 'score', 'freeze', 'pilot']) out[name] = form.elements[name].value;
+      for (const name of ['own', 'compare']) out[name] = form.elements[name].checked;
+      return out;
+    });
+    const before = await read();
+    assert.deepEqual(before, chosen);
+    await page.reload();
+    await session.waitFor('the page after the reload', () => document.getElementById('check-status').dataset.state === 'ok');
+    assert.deepEqual(await read(), before);
+    // Slice sampling cannot be adapted by Robbins–Monro or adaptive Metropolis.
+    const disabled = await page.$$eval('#tuning option:disabled', (options) => options.map((o) => o.value));
+    assert.deepEqual(disabled, ['rm', 'am']);
+    await page.click('#new-seed');
+    const seed = await page.inputValue('#seed');
+    assert.notEqual(seed, chosen.seed, 'a new seed');
+    assert.ok(/^\d+$/.test(seed) && Number(seed) <= Number.MAX_SAFE_INTEGER, `a whole number below 2^53, not ${seed}`);
+    await fillRunForm(page, { seed: '9007199254740992' });
+    assert.match(await page.textContent('#run-status'), /seed/i, 'a seed of 2^53 is refused');
+    assert.equal(await page.isDisabled('#start'), true);
+  } finally {
+    await session.close();
+  }
+});
+
+test('with results shown the page fits a laptop screen and a phone, the caution always in view', { timeout: 180_000 }, async () => {
+  for (const viewport of [{ width: 1280, height: 800 }, { width: 390, height: 844 }]) {
+    const session = await openChecked({ viewport });
+    try {
+      const { page } = session;
+      await fillRunForm(page, { kernel: 'rwm', tuning: 'bo', chains: 4, draws: 400, warmup: 100, trials: 10, window: 40, seed: 8 });
+      await runAndWait(session);
+      const name = `results-${viewport.width}x${viewport.height}`;
+      for (const [where, y] of [['top', 0], ['middle', 0.5], ['end', 1]]) {
+        await page.evaluate((share) => window.scrollTo(0, share * (document.documentElement.scrollHeight - window.innerHeight)), y);
+        await page.waitForTimeout(200);
+        const layout = await page.evaluate(() => {
+          const caution = document.querySelector('.caution').getBoundingClientRect();
+          return {
+            overflowX: document.documentElement.scrollWidth > window.innerWidth,
+            cautionInView: caution.top >= 0 && caution.bottom <= window.innerHeight + 0.5,
+          };
+        });
+        assert.equal(layout.overflowX, false, `no sideways scrolling at ${viewport.width}px (${where})`);
+        assert.equal(layout.cautionInView, true, `the caution is in view at ${viewport.width}px (${where})`);
+        await session.screenshot(`${name}-${where}`);
+      }
+    } finally {
+      await session.close();
+    }
+  }
+});
+
+test('once loaded, the page works offline: a run starts, and a reload still opens it', { timeout: 180_000 }, async () => {
+  const session = await openChecked();
+  try {
+    const { page } = session;
+    // The service worker keeps the page's files once it controls the page.
+    await session.waitFor('the service worker to control the page', () => navigator.serviceWorker?.controller !== null, null, 30_000);
+    await session.setOffline(true);
+    await fillRunForm(page, { kernel: 'rwm', tuning: 'bo', chains: 2, draws: 200, warmup: 100, trials: 6, window: 30, seed: 4 });
+    await runAndWait(session);
+    assert.equal(JSON.parse(await downloadText(page, '#export-json')).complete, true);
+    await page.reload();
+    await session.waitFor('the page to load offline', () => document.getElementById('check-status').dataset.state === 'ok', null, 30_000);
+    await runAndWait(session);
+    await session.setOffline(false);
+  } finally {
+    await session.close();
   }
 });

@@ -7,7 +7,7 @@
 
 mod run;
 
-pub use run::{ChainEngine, RunEngine, comparison_configs, default_config, make_link, read_link};
+pub use run::{ChainEngine, RunEngine, comparison_configs, default_config, describe_settings, make_link, read_link};
 
 use crate::lang::{Diagnostic, Position};
 use crate::model::{self, ModelInfo};

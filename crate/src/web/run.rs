@@ -5,6 +5,7 @@
 
 use crate::chain::conductor::{Collected, Conductor, MAX_SEED, RunConfig, Tuning};
 use crate::chain::{Chain, Outcome, Task};
+use crate::kernel::Settings;
 use crate::link::{self, Shared};
 use crate::report::{self, Comparison, Report};
 use crate::tape::Tape;
@@ -204,6 +205,14 @@ pub fn default_config(source: &str, kind: &str, tune: &str, seed: f64) -> Result
     let tape = compile(source)?;
     let config = RunConfig::default_for(kind, tune, tape.dim(), seed_from(seed)?).map_err(|e| JsError::new(&e))?;
     to_js(&config)
+}
+
+/// A kernel's settings in words, as the command line prints them ("random-walk Metropolis,
+/// scale 0.8400, blend 1.000").
+#[wasm_bindgen]
+pub fn describe_settings(settings: JsValue) -> Result<String, JsError> {
+    let settings: Settings = serde_wasm_bindgen::from_value(settings)?;
+    Ok(settings.describe())
 }
 
 /// Every tuning method that applies to `config`'s kernel, with its budget: the runs a
