@@ -105,7 +105,8 @@ impl Report {
                      or the density is zero or undefined around where the chain stands.",
                     report.chain
                 ));
-            } else if matches!(collected.settings, Settings::RandomWalk { .. })
+            } else if s.proposals > 0
+                && matches!(collected.settings, Settings::RandomWalk { .. })
                 && !(ACCEPTANCE_BAND.0..=ACCEPTANCE_BAND.1).contains(&report.acceptance)
             {
                 warnings.push(format!(
