@@ -9,7 +9,8 @@ import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import {
-  MIXWELL_BIN, downloadBytes, downloadText, exampleFiles, fillRunForm, mixwell, openChecked, replaceEditorText, runAndWait,
+  BASE_URL, MIXWELL_BIN, downloadBytes, downloadText, exampleFiles, fillRunForm, mixwell, openChecked, openPage, replaceEditorText,
+  runAndWait,
 } from './harness.mjs';
 
 // Small budgets, so that each run takes a second or two; each example also tries another part of
@@ -133,6 +134,54 @@ test('cancel stops the chain workers at once, shows the draws so far, and a new 
     await session.screenshot('cancelled', { fullPage: false });
 
     // The page stays usable: a short run starts and finishes.
+    await fillRunForm(page, { draws: 200 });
+    await runAndWait(session);
+    assert.equal(JSON.parse(await downloadText(page, '#export-json')).complete, true);
+  } finally {
+    await session.close();
+  }
+});
+
+test('a chain worker that dies mid-run ends the run cleanly with the draws so far, and the page stays usable', { timeout: 300_000 }, async () => {
+  const session = await openPage();
+  try {
+    const { page } = session;
+    // The first chain worker "crashes" on its tenth task: it is terminated and an error event is
+    // raised, as when a worker dies. Workers made later (for the next run) behave.
+    await page.addInitScript(() => {
+      const Real = window.Worker;
+      let crashed = false;
+      window.Worker = class extends Real {
+        constructor(url, options) {
+          super(url, options);
+          this.tasks = 0;
+          this.flaky = !crashed && (options?.name ?? '').startsWith('mixwell-chains-1');
+        }
+        postMessage(message, transfer) {
+          if (this.flaky && message?.kind === 'perform' && ++this.tasks === 10) {
+            crashed = true;
+            this.terminate();
+            this.dispatchEvent(new ErrorEvent('error', { message: 'simulated crash' }));
+            return;
+          }
+          super.postMessage(message, transfer);
+        }
+      };
+    });
+    await page.goto(BASE_URL);
+    await session.waitFor('the first check of the model', () => document.getElementById('check-status')?.dataset.state === 'ok');
+    await page.click('button[data-example="bakery"]');
+    await fillRunForm(page, { kernel: 'rwm', tuning: 'none', chains: 2, draws: 5_000, warmup: 250, pilot: 50, seed: 3 });
+    await page.click('#start');
+    await session.waitFor('the interrupted run\'s results', () => Number(document.getElementById('results').dataset.shown ?? 0) === 1
+      && !document.getElementById('start').disabled, null, 60_000);
+    assert.match(await page.textContent('#run-status'), /A chain stopped unexpectedly \(.*simulated crash\)/);
+    const report = JSON.parse(await downloadText(page, '#export-json'));
+    assert.equal(report.complete, false, 'the report says the run is incomplete');
+    const csvRows = (await downloadText(page, '#export-csv')).trim().split('\n').length - 1;
+    assert.ok(csvRows > 0 && csvRows < 2 * 5_000 && csvRows % 2 === 0, `the draws made so far, as many per chain (${csvRows})`);
+    await session.screenshot('worker-died', { fullPage: false });
+    // The page stays usable: the next run starts on fresh workers and completes.
     await fillRunForm(page, { draws: 200 });
     await runAndWait(session);
     assert.equal(JSON.parse(await downloadText(page, '#export-json')).complete, true);

@@ -297,6 +297,7 @@ async function main() {
     const configs = compare ? comparisonConfigs(config) : [config];
     const progress = progressView($('progress'), configs);
     runStatus.textContent = '';
+    delete runStatus.dataset.state;
     resultsArea.classList.add('stale');
     job = startJob({ source, config, compare, onProgress: (p) => progress.update(p) });
     refresh();
@@ -329,7 +330,12 @@ async function main() {
     resultsArea.dataset.seconds = String(seconds);
     // A counter of results shown, so that anyone waiting for new results can tell them apart.
     resultsArea.dataset.shown = String(Number(resultsArea.dataset.shown ?? 0) + 1);
-    if (outcome.cancelled) runStatus.textContent = 'Stopped. The chains were ended; the results below are marked incomplete.';
+    if (outcome.interrupted) {
+      runStatus.textContent = `A chain stopped unexpectedly (${outcome.interrupted}). The run was ended; the results below use the draws made so far and are marked incomplete.`;
+      runStatus.dataset.state = 'problem';
+    } else if (outcome.cancelled) {
+      runStatus.textContent = 'Stopped. The chains were ended; the results below are marked incomplete.';
+    }
     resultsArea.scrollIntoView({ behavior: 'smooth', block: 'start' });
   };
 

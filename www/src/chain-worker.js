@@ -11,11 +11,9 @@
 //   anything that goes wrong                → { kind: 'failed', message, chain }
 //        (chain: the index of the chain that could not start, when that is what went wrong)
 
-import init, { ChainEngine, version } from '../pkg/mixwell.js';
+import { ChainEngine, version } from '../pkg/mixwell.js';
+import { answerRequests } from './answer.js';
 
-// The engine loads on the first message, from the compiled module it carries (`module`, shared
-// with the page) or, without one, from the file next to the bindings.
-let ready = null;
 let chains = [];
 
 const handlers = {
@@ -40,17 +38,4 @@ const handlers = {
   },
 };
 
-self.onmessage = async ({ data }) => {
-  const id = data?.id;
-  try {
-    ready ??= init(data?.module ? { module_or_path: data.module } : undefined);
-    await ready;
-    const handle = handlers[data?.kind];
-    if (!handle) throw new Error(`unknown request kind ${JSON.stringify(data?.kind)}`);
-    const answer = handle(data);
-    const [message, transfer] = Array.isArray(answer) ? answer : [answer, []];
-    self.postMessage({ id, ...message }, transfer);
-  } catch (error) {
-    self.postMessage({ id, kind: 'failed', message: String(error?.message ?? error), chain: error?.chain });
-  }
-};
+answerRequests(handlers);

@@ -74,7 +74,7 @@ function dismissAll() {
  * Start a job: one run of `config`, or with `compare`, one run per tuning method that applies
  * (comparison_configs), one after another, the chosen method's report then carrying the
  * comparison. `onProgress({ run, runs, method, phase, done, total })` is called after every task.
- * Returns `{ done, cancel }`; `done` resolves to `{ finished, cancelled, method, completedRuns,
+ * Returns `{ done, cancel }`; `done` resolves to `{ finished, cancelled, interrupted, method, completedRuns,
  * runs }`, where `finished` is what RunEngine.finish returns (with the comparison attached).
  */
 export function startJob({ source, config, compare, onProgress }) {
@@ -84,7 +84,8 @@ export function startJob({ source, config, compare, onProgress }) {
   // The plans opened in the planning worker, closed when the job ends.
   const opened = new Set();
 
-  // One run; resolves to { run, finished, seconds }.
+  // One run; resolves to { run, finished, seconds, interrupted } (interrupted: the error of a chain
+  // worker that failed or died mid-run, whose draws so far are then reported as incomplete).
   async function runOnce(runConfig, report) {
     const count = workerCount(runConfig.chains);
     const workers = chainWorkers.slice(0, count);
@@ -92,6 +93,7 @@ export function startJob({ source, config, compare, onProgress }) {
     let run = null;
     let started = null;
     let seconds = 0;
+    let interrupted = null;
     const opening = planner.request('open', { source, config: runConfig, lags: LAGS });
     try {
       const settled = await Promise.allSettled([
@@ -109,7 +111,16 @@ export function startJob({ source, config, compare, onProgress }) {
       opened.add(run);
       report(progress);
       while (task !== null && !cancelled) {
-        const answers = await Promise.all(workers.map((worker) => worker.request('perform', { task })));
+        let answers;
+        try {
+          answers = await Promise.all(workers.map((worker) => worker.request('perform', { task })));
+        } catch (error) {
+          if (cancelled || error instanceof Stopped) throw error;
+          // A chain's worker failed or died mid-run: end the chains and keep the draws so far.
+          interrupted = error;
+          for (const worker of workers) worker.stop();
+          break;
+        }
         const outcomes = answers.flatMap((answer) => answer.outcomes);
         const transfer = outcomes.map((outcome) => outcome.rows.buffer);
         ({ task, progress } = await planner.request('step', { run, outcomes }, transfer));
@@ -125,9 +136,9 @@ export function startJob({ source, config, compare, onProgress }) {
     // Cancelled while the chains were starting: the plan is open all the same.
     if (run === null) ({ run } = await opening);
     opened.add(run);
-    if (cancelled && started !== null) seconds = (performance.now() - started) / 1000;
+    if ((cancelled || interrupted) && started !== null) seconds = (performance.now() - started) / 1000;
     const { finished } = await planner.request('finish', { run, seconds });
-    return { run, finished, seconds };
+    return { run, finished, seconds, interrupted };
   }
 
   async function drive() {
@@ -142,8 +153,11 @@ export function startJob({ source, config, compare, onProgress }) {
     for (let i = 0; i < configs.length; i++) {
       const method = configs[i].tuning.method;
       const outcome = await runOnce(configs[i], (progress) => onProgress({ run: i + 1, runs: configs.length, method, ...progress }));
-      if (cancelled) {
-        return { finished: outcome.finished, cancelled: true, method, completedRuns: i, runs: configs.length };
+      if (cancelled || outcome.interrupted) {
+        return {
+          finished: outcome.finished, cancelled: true, interrupted: outcome.interrupted?.message ?? null,
+          method, completedRuns: i, runs: configs.length,
+        };
       }
       rows.push(outcome.finished.comparison);
       if (i === chosen) primary = outcome;
@@ -163,7 +177,7 @@ export function startJob({ source, config, compare, onProgress }) {
     async (outcome) => {
       // The reports are the page's now; the plans can go.
       await Promise.all([...opened].map((run) => planner.request('close', { run })));
-      if (cancelled) dismissChains();
+      if (cancelled || outcome.interrupted) dismissChains();
       return outcome;
     },
     (error) => {

@@ -14,11 +14,9 @@
 //   { kind: 'close', run }                    → { kind: 'closed' }
 //   anything that goes wrong                  → { kind: 'failed', message }
 
-import init, { RunEngine, check_model, version } from '../pkg/mixwell.js';
+import { RunEngine, check_model, version } from '../pkg/mixwell.js';
+import { answerRequests } from './answer.js';
 
-// The engine loads on the first message, from the compiled module it carries (`module`, shared
-// with the page) or, without one, from the file next to the bindings.
-let ready = null;
 const runs = new Map();
 let nextRun = 1;
 
@@ -57,17 +55,4 @@ const handlers = {
   },
 };
 
-self.onmessage = async ({ data }) => {
-  const id = data?.id;
-  try {
-    ready ??= init(data?.module ? { module_or_path: data.module } : undefined);
-    await ready;
-    const handle = handlers[data?.kind];
-    if (!handle) throw new Error(`unknown request kind ${JSON.stringify(data?.kind)}`);
-    const answer = handle(data);
-    const [message, transfer] = Array.isArray(answer) ? answer : [answer, []];
-    self.postMessage({ id, ...message }, transfer);
-  } catch (error) {
-    self.postMessage({ id, kind: 'failed', message: String(error?.message ?? error) });
-  }
-};
+answerRequests(handlers);
