@@ -8,9 +8,10 @@
 //! For every target, seed and kernel:
 //! 1. A pilot run (as in every mixwell run: 4 chains, 200 slice sweeps) fixes the starting states
 //!    and the geometry that settings are relative to.
-//! 2. Each method chooses its setting through the library's own run: `bo` (the default
-//!    [`BoConfig`], 100 trials × 100 steps), `rm` and `am` (the same steps), `none` (the default
-//!    setting untouched).
+//! 2. Each method chooses its setting through the library's own run, configured as
+//!    `mixwell run --tune METHOD` configures it: `bo` (100 trials × 100 steps, scored by
+//!    effective draws per evaluation for the random walk and by jump distance per evaluation for
+//!    the slice sampler), `rm` and `am` (the same steps), `none` (the default setting untouched).
 //! 3. The oracle searches a grid of settings by brute force, a long run at each point, refined
 //!    twice around the best point; the best three are measured once more and the best mean wins.
 //!    The search runs on chains of other seeds (with this seed's geometry), independent of step 4,
@@ -24,13 +25,12 @@
 //! independent streams. Every figure except the seconds is fixed by the seeds, so it is the same
 //! on any machine and however the threads are scheduled.
 
-use mixwell::chain::conductor::{RunConfig, Tuning, pooled_geometry};
+use mixwell::chain::conductor::{RunConfig, pooled_geometry};
 use mixwell::chain::{Chain, Record, Task, threads};
 use mixwell::diag;
 use mixwell::kernel::{Geometry, Settings};
 use mixwell::model::check;
 use mixwell::tape::Tape;
-use mixwell::tune::policy::BoConfig;
 use std::sync::Mutex;
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::time::Instant;
@@ -106,8 +106,13 @@ impl Kind {
         }
     }
 
+    /// The name a run configuration knows the kernel by.
+    fn key(self) -> &'static str {
+        if self == Kind::RandomWalk { "rwm" } else { "slice" }
+    }
+
     fn default_settings(self, dim: usize) -> Settings {
-        Settings::default_for(if self == Kind::RandomWalk { "rwm" } else { "slice" }, dim)
+        Settings::default_for(self.key(), dim)
     }
 
     fn methods(self) -> &'static [&'static str] {
@@ -272,22 +277,14 @@ fn pilot(tape: &Tape, seed: u64, plan: &Plan) -> (Vec<Chain>, Geometry) {
 
 /// A method's choice through the library's own run (no draws: tuning only).
 fn tune(tape: &Tape, kind: Kind, method: &str, seed: u64, plan: &Plan, pilot_geometry: &Geometry) -> Frozen {
-    let bo = BoConfig::default();
-    let steps = bo.trials * bo.window;
-    let tuning = match method {
-        "bo" => Tuning::Bo(bo),
-        "rm" => Tuning::Rm { steps },
-        "am" => Tuning::Am { steps },
-        _ => unreachable!("no method {method}"),
-    };
+    // Exactly what `mixwell run --tune METHOD` would do (default budget, and the score the
+    // product uses for this kernel), with the bench's chains and pilot and no draws.
     let config = RunConfig {
         chains: plan.chains,
         warmup: 0,
         draws: 0,
-        seed,
         pilot: plan.pilot,
-        settings: kind.default_settings(tape.dim()),
-        tuning,
+        ..RunConfig::default_for(kind.key(), method, tape.dim(), seed).expect("a known method")
     };
     let t = Instant::now();
     let collected = threads::run(tape, config, |_| {}).expect("chains start");
