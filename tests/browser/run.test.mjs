@@ -1,7 +1,8 @@
 // Runs in the page, checked against the command line: every gallery example tuned and sampled in
 // headless Chromium gives, to the byte, the report and draws that `mixwell run --link <the page's
 // link>` gives natively (DESIGN.md, "Share links": a link reproduces the same draws anywhere).
-// Also: a comparison of methods, cancelling, a model that does not read, and the plots' exports.
+// Also: a comparison of methods, cancelling (while sampling and while tuning), a worker that dies,
+// a model that does not read, and the plots' exports.
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { spawnSync } from 'node:child_process';
@@ -9,8 +10,8 @@ import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import {
-  BASE_URL, MIXWELL_BIN, downloadBytes, downloadText, exampleFiles, fillRunForm, mixwell, openChecked, openPage, replaceEditorText,
-  runAndWait,
+  BASE_URL, MIXWELL_BIN, downloadBytes, downloadText, editorText, exampleFiles, fillRunForm, mixwell, openChecked, openPage,
+  replaceEditorText, runAndWait,
 } from './harness.mjs';
 
 // Small budgets, so that each run takes a second or two; each example also tries another part of
@@ -142,6 +143,43 @@ test('cancel stops the chain workers at once, shows the draws so far, and a new 
   }
 });
 
+test('a cancel in the middle of tuning ends the run cleanly, marked incomplete, and the page stays usable', { timeout: 300_000 }, async () => {
+  const session = await openChecked();
+  try {
+    const { page } = session;
+    await page.click('button[data-example="orchard"]');
+    // A tuning budget far beyond the test's time, so the cancel lands among the trials.
+    await fillRunForm(page, { kernel: 'rwm', tuning: 'bo', chains: 2, draws: 500, warmup: 100, trials: 5_000, window: 2_000, seed: 11 });
+    await page.click('#start');
+    await session.waitFor('tuning trials to be under way', () => {
+      const count = document.querySelector('#progress li[data-phase="tuning"] .count')?.textContent ?? '';
+      return /^[\d,]+ \//.test(count) && !count.startsWith('0 ');
+    }, null, 60_000);
+    const clicked = Date.now();
+    await page.click('#cancel');
+    await session.waitFor('the stopped run to end', () => !document.getElementById('start').disabled, null, 5_000);
+    const elapsed = Date.now() - clicked;
+    assert.ok(elapsed < 2_000, `the run ends within 2 s of the cancel, not ${elapsed} ms`);
+    const status = await page.textContent('#run-status');
+    assert.match(status, /cancel|stopped/i, `the page says the run was stopped: ${status}`);
+    const progress = await page.textContent('#progress');
+    await page.waitForTimeout(1_000);
+    assert.equal(await page.textContent('#progress'), progress, 'no further progress after a cancel');
+    assert.match(await page.textContent('#results'), /Stopped while tuning, after [\d,]+ trials/);
+    const report = JSON.parse(await downloadText(page, '#export-json'));
+    assert.equal(report.complete, false, 'the report says the run is incomplete');
+    assert.ok(report.tuning.trials.length > 0, 'the trials made so far are reported');
+    await session.screenshot('cancelled-in-tuning', { fullPage: false });
+
+    // The page stays usable: a short run starts and finishes, complete.
+    await fillRunForm(page, { trials: 5, window: 20, draws: 200 });
+    await runAndWait(session);
+    assert.equal(JSON.parse(await downloadText(page, '#export-json')).complete, true);
+  } finally {
+    await session.close();
+  }
+});
+
 test('a chain worker that dies mid-run ends the run cleanly with the draws so far, and the page stays usable', { timeout: 300_000 }, async () => {
   const session = await openPage();
   try {
@@ -185,6 +223,66 @@ test('a chain worker that dies mid-run ends the run cleanly with the draws so fa
     await fillRunForm(page, { draws: 200 });
     await runAndWait(session);
     assert.equal(JSON.parse(await downloadText(page, '#export-json')).complete, true);
+  } finally {
+    await session.close();
+  }
+});
+
+test('the edited text survives a crash of either kind of worker and a reload in the middle of a run', { timeout: 300_000 }, async () => {
+  const session = await openPage();
+  try {
+    const { page } = session;
+    // The worker named in sessionStorage "crashes" on its third message: it is terminated and an
+    // error event is raised, as when a worker dies. sessionStorage outlives a reload, so a crash
+    // can be arranged before any run; it is cleared once it has happened.
+    await page.addInitScript(() => {
+      const Real = window.Worker;
+      window.Worker = class extends Real {
+        constructor(url, options) {
+          super(url, options);
+          this.workerName = options?.name ?? '';
+          this.messages = 0;
+        }
+        postMessage(message, transfer) {
+          if (sessionStorage.getItem('crash-worker') === this.workerName && ++this.messages === 3) {
+            sessionStorage.removeItem('crash-worker');
+            this.terminate();
+            this.dispatchEvent(new ErrorEvent('error', { message: 'simulated crash' }));
+            return;
+          }
+          super.postMessage(message, transfer);
+        }
+      };
+    });
+    await page.goto(BASE_URL);
+    await session.waitFor('the first check of the model', () => document.getElementById('check-status')?.dataset.state === 'ok');
+    await page.click('button[data-example="bakery"]');
+    const edited = `# my own edit, not saved anywhere else\n${await editorText(page)}`;
+    await replaceEditorText(page, edited);
+    await session.waitFor('the edit to be checked', () => document.getElementById('check-status').dataset.state === 'ok');
+    // Long enough that the run is still going when the crash or the reload comes.
+    await fillRunForm(page, { kernel: 'rwm', tuning: 'none', chains: 2, draws: 2_000_000, warmup: 100, pilot: 50, seed: 8 });
+
+    const reloadAndCheck = async (when) => {
+      await page.reload();
+      await session.waitFor('the page after the reload', () => document.getElementById('check-status')?.dataset.state === 'ok');
+      assert.equal(await editorText(page), edited, `the edited text after a reload ${when}`);
+    };
+    for (const worker of ['mixwell-plan', 'mixwell-chains-1']) {
+      await page.evaluate((name) => sessionStorage.setItem('crash-worker', name), worker);
+      await page.click('#start');
+      await session.waitFor(`the run to end after ${worker} crashed`, () => !document.getElementById('start').disabled
+        && sessionStorage.getItem('crash-worker') === null, null, 60_000);
+      assert.match(await page.textContent('#run-status'), /simulated crash/, `the page says why the run ended (${worker})`);
+      assert.equal(await editorText(page), edited, `the edited text after ${worker} crashed`);
+      await reloadAndCheck(`after ${worker} crashed`);
+    }
+    await page.click('#start');
+    await session.waitFor('sampling to be under way', () => {
+      const count = document.querySelector('#progress li[data-phase="sampling"] .count')?.textContent ?? '';
+      return /^[\d,]+ \//.test(count) && !count.startsWith('0 ');
+    }, null, 60_000);
+    await reloadAndCheck('in the middle of a run');
   } finally {
     await session.close();
   }
