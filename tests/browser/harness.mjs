@@ -113,10 +113,14 @@ export async function openPage({ viewport = { width: 1280, height: 800 } } = {})
   };
 }
 
-/** Open the page and wait until the engine has checked the text in the editor. */
-export async function openChecked(options) {
+/**
+ * Open the page and wait until the engine has checked the text in the editor. With
+ * `crashes: true`, workers can be made to crash on demand (`armWorkerCrash`).
+ */
+export async function openChecked({ crashes = false, ...options } = {}) {
   const session = await openPage(options);
   try {
+    if (crashes) await session.page.addInitScript(crashableWorkers);
     await session.page.goto(BASE_URL);
     await session.waitFor('the first check of the model', () => {
       const state = document.getElementById('check-status')?.dataset.state;
@@ -127,6 +131,51 @@ export async function openChecked(options) {
     throw error;
   }
   return session;
+}
+
+// Runs in the page before its own scripts: the worker named by the crash armed in sessionStorage
+// (which outlives a reload) "crashes" on its nth message of the armed kind (any kind if none) —
+// it is terminated and an error event is raised, as when a worker dies — and the crash is disarmed.
+function crashableWorkers() {
+  const Real = window.Worker;
+  window.Worker = class extends Real {
+    constructor(url, options) {
+      super(url, options);
+      this.workerName = options?.name ?? '';
+      this.counted = 0;
+    }
+    postMessage(message, transfer) {
+      const crash = JSON.parse(sessionStorage.getItem('mixwell-test-crash') ?? 'null');
+      if (crash?.worker === this.workerName && (!crash.kind || crash.kind === message?.kind) && ++this.counted === crash.nth) {
+        sessionStorage.removeItem('mixwell-test-crash');
+        this.terminate();
+        this.dispatchEvent(new ErrorEvent('error', { message: 'simulated crash' }));
+        return;
+      }
+      super.postMessage(message, transfer);
+    }
+  };
+}
+
+/**
+ * Make the worker named `worker` crash on its `nth` message of kind `kind` (any kind if none)
+ * from now on, once; the page must have been opened by `openChecked({ crashes: true })`.
+ */
+export function armWorkerCrash(page, { worker, kind = null, nth }) {
+  return page.evaluate((crash) => sessionStorage.setItem('mixwell-test-crash', JSON.stringify(crash)), { worker, kind, nth });
+}
+
+/** Whether the crash armed by `armWorkerCrash` has happened. */
+export function workerCrashed(page) {
+  return page.evaluate(() => sessionStorage.getItem('mixwell-test-crash') === null);
+}
+
+/** Wait until the running job's `phase` ('pilot', 'tuning', 'sampling', …) has made progress. */
+export function waitForProgress(session, phase, timeout = 60_000) {
+  return session.waitFor(`${phase} to be under way`, (name) => {
+    const count = document.querySelector(`#progress li[data-phase="${name}"] .count`)?.textContent ?? '';
+    return /^[\d,]+ \//.test(count) && !count.startsWith('0 ');
+  }, phase, timeout);
 }
 
 /** The text in the editor, line by line as CodeMirror shows it. */

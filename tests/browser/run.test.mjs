@@ -10,8 +10,8 @@ import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import {
-  BASE_URL, MIXWELL_BIN, downloadBytes, downloadText, editorText, exampleFiles, fillRunForm, mixwell, openChecked, openPage,
-  replaceEditorText, runAndWait,
+  MIXWELL_BIN, armWorkerCrash, downloadBytes, downloadText, editorText, exampleFiles, fillRunForm, mixwell, openChecked,
+  replaceEditorText, runAndWait, waitForProgress, workerCrashed,
 } from './harness.mjs';
 
 // Small budgets, so that each run takes a second or two; each example also tries another part of
@@ -109,10 +109,7 @@ test('cancel stops the chain workers at once, shows the draws so far, and a new 
     // Far more draws than can be made in the test's time.
     await fillRunForm(page, { kernel: 'rwm', tuning: 'none', chains: 4, draws: 5_000_000, warmup: 100, seed: 5 });
     await page.click('#start');
-    await session.waitFor('sampling to be under way', () => {
-      const count = document.querySelector('#progress li[data-phase="sampling"] .count')?.textContent ?? '';
-      return /^[\d,]+ \//.test(count) && !count.startsWith('0 ');
-    }, null, 60_000);
+    await waitForProgress(session, 'sampling');
     // The run's chain workers (the planning worker stays for the next run).
     const running = page.workers().filter((worker) => worker.url().endsWith('/chain-worker.js'));
     assert.ok(running.length >= 1, 'chain workers are running');
@@ -151,10 +148,7 @@ test('a cancel in the middle of tuning ends the run cleanly, marked incomplete, 
     // A tuning budget far beyond the test's time, so the cancel lands among the trials.
     await fillRunForm(page, { kernel: 'rwm', tuning: 'bo', chains: 2, draws: 500, warmup: 100, trials: 5_000, window: 2_000, seed: 11 });
     await page.click('#start');
-    await session.waitFor('tuning trials to be under way', () => {
-      const count = document.querySelector('#progress li[data-phase="tuning"] .count')?.textContent ?? '';
-      return /^[\d,]+ \//.test(count) && !count.startsWith('0 ');
-    }, null, 60_000);
+    await waitForProgress(session, 'tuning');
     const clicked = Date.now();
     await page.click('#cancel');
     await session.waitFor('the stopped run to end', () => !document.getElementById('start').disabled, null, 5_000);
@@ -181,35 +175,13 @@ test('a cancel in the middle of tuning ends the run cleanly, marked incomplete, 
 });
 
 test('a chain worker that dies mid-run ends the run cleanly with the draws so far, and the page stays usable', { timeout: 300_000 }, async () => {
-  const session = await openPage();
+  const session = await openChecked({ crashes: true });
   try {
     const { page } = session;
-    // The first chain worker "crashes" on its tenth task: it is terminated and an error event is
-    // raised, as when a worker dies. Workers made later (for the next run) behave.
-    await page.addInitScript(() => {
-      const Real = window.Worker;
-      let crashed = false;
-      window.Worker = class extends Real {
-        constructor(url, options) {
-          super(url, options);
-          this.tasks = 0;
-          this.flaky = !crashed && (options?.name ?? '').startsWith('mixwell-chains-1');
-        }
-        postMessage(message, transfer) {
-          if (this.flaky && message?.kind === 'perform' && ++this.tasks === 10) {
-            crashed = true;
-            this.terminate();
-            this.dispatchEvent(new ErrorEvent('error', { message: 'simulated crash' }));
-            return;
-          }
-          super.postMessage(message, transfer);
-        }
-      };
-    });
-    await page.goto(BASE_URL);
-    await session.waitFor('the first check of the model', () => document.getElementById('check-status')?.dataset.state === 'ok');
     await page.click('button[data-example="bakery"]');
     await fillRunForm(page, { kernel: 'rwm', tuning: 'none', chains: 2, draws: 5_000, warmup: 250, pilot: 50, seed: 3 });
+    // The first chain worker "crashes" on its tenth task; the workers of the next run behave.
+    await armWorkerCrash(page, { worker: 'mixwell-chains-1', kind: 'perform', nth: 10 });
     await page.click('#start');
     await session.waitFor('the interrupted run\'s results', () => Number(document.getElementById('results').dataset.shown ?? 0) === 1
       && !document.getElementById('start').disabled, null, 60_000);
@@ -229,33 +201,9 @@ test('a chain worker that dies mid-run ends the run cleanly with the draws so fa
 });
 
 test('the edited text survives a crash of either kind of worker and a reload in the middle of a run', { timeout: 300_000 }, async () => {
-  const session = await openPage();
+  const session = await openChecked({ crashes: true });
   try {
     const { page } = session;
-    // The worker named in sessionStorage "crashes" on its third message: it is terminated and an
-    // error event is raised, as when a worker dies. sessionStorage outlives a reload, so a crash
-    // can be arranged before any run; it is cleared once it has happened.
-    await page.addInitScript(() => {
-      const Real = window.Worker;
-      window.Worker = class extends Real {
-        constructor(url, options) {
-          super(url, options);
-          this.workerName = options?.name ?? '';
-          this.messages = 0;
-        }
-        postMessage(message, transfer) {
-          if (sessionStorage.getItem('crash-worker') === this.workerName && ++this.messages === 3) {
-            sessionStorage.removeItem('crash-worker');
-            this.terminate();
-            this.dispatchEvent(new ErrorEvent('error', { message: 'simulated crash' }));
-            return;
-          }
-          super.postMessage(message, transfer);
-        }
-      };
-    });
-    await page.goto(BASE_URL);
-    await session.waitFor('the first check of the model', () => document.getElementById('check-status')?.dataset.state === 'ok');
     await page.click('button[data-example="bakery"]');
     const edited = `# my own edit, not saved anywhere else\n${await editorText(page)}`;
     await replaceEditorText(page, edited);
@@ -269,19 +217,17 @@ test('the edited text survives a crash of either kind of worker and a reload in 
       assert.equal(await editorText(page), edited, `the edited text after a reload ${when}`);
     };
     for (const worker of ['mixwell-plan', 'mixwell-chains-1']) {
-      await page.evaluate((name) => sessionStorage.setItem('crash-worker', name), worker);
+      // The worker crashes on its third message of the run.
+      await armWorkerCrash(page, { worker, nth: 3 });
       await page.click('#start');
-      await session.waitFor(`the run to end after ${worker} crashed`, () => !document.getElementById('start').disabled
-        && sessionStorage.getItem('crash-worker') === null, null, 60_000);
+      await session.waitFor(`the run to end after ${worker} crashed`, () => !document.getElementById('start').disabled, null, 60_000);
+      assert.ok(await workerCrashed(page), `${worker} crashed`);
       assert.match(await page.textContent('#run-status'), /simulated crash/, `the page says why the run ended (${worker})`);
       assert.equal(await editorText(page), edited, `the edited text after ${worker} crashed`);
       await reloadAndCheck(`after ${worker} crashed`);
     }
     await page.click('#start');
-    await session.waitFor('sampling to be under way', () => {
-      const count = document.querySelector('#progress li[data-phase="sampling"] .count')?.textContent ?? '';
-      return /^[\d,]+ \//.test(count) && !count.startsWith('0 ');
-    }, null, 60_000);
+    await waitForProgress(session, 'sampling');
     await reloadAndCheck('in the middle of a run');
   } finally {
     await session.close();
