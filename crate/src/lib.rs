@@ -12,6 +12,8 @@ pub mod kernel;
 pub mod lang;
 pub mod link;
 pub mod model;
+pub mod names;
+pub mod plan;
 pub mod report;
 pub mod rng;
 pub mod tape;

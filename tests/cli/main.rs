@@ -5,6 +5,7 @@ mod bad_inputs;
 mod commands;
 mod golden;
 mod malformed;
+mod plan;
 
 use std::io::Write;
 use std::path::{Path, PathBuf};

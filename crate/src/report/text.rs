@@ -1,6 +1,7 @@
 //! The report as a plain-text table for a terminal.
 
 use super::{Quantity, Report};
+use crate::plan::Method;
 use std::fmt::Write as _;
 
 /// `value` with `digits` significant digits, without exponent for everyday magnitudes.
@@ -101,13 +102,12 @@ pub fn table(report: &Report, title: &str) -> String {
 }
 
 /// The tuning methods in words.
-pub fn method_name(method: &str) -> &'static str {
+pub fn method_name(method: Method) -> &'static str {
     match method {
-        "bo" => "Bayesian optimisation",
-        "rm" => "Robbins–Monro acceptance targeting",
-        "am" => "adaptive Metropolis",
-        "none" => "no tuning (the given setting)",
-        _ => "an unknown method",
+        Method::Bo => "Bayesian optimisation",
+        Method::Rm => "Robbins–Monro acceptance targeting",
+        Method::Am => "adaptive Metropolis",
+        Method::None => "no tuning (the given setting)",
     }
 }
 

@@ -7,7 +7,9 @@
 
 mod run;
 
-pub use run::{ChainEngine, RunEngine, comparison_configs, default_config, describe_settings, make_link, read_link};
+pub use run::{
+    ChainEngine, RunEngine, default_settings, describe_settings, make_link, plan_run, read_link, standard_options,
+};
 
 use crate::lang::{Diagnostic, Position};
 use crate::model::{self, ModelInfo};
