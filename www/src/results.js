@@ -18,7 +18,10 @@ export const METHOD_NAMES = {
   bo: 'Bayesian optimisation', rm: 'Robbins–Monro', am: 'Adaptive Metropolis', none: 'No tuning (the setting as given)',
 };
 
-const SCORE_NAMES = { 'ess-per-eval': 'log of effective draws per evaluation', acf: 'minus the mean absolute autocorrelation' };
+const SCORE_NAMES = {
+  'ess-per-eval': 'log of effective draws per evaluation', 'jump-per-eval': 'log of mean squared jump per evaluation',
+  acf: 'minus the mean absolute autocorrelation',
+};
 
 const count = (n) => Number(n).toLocaleString('en');
 
