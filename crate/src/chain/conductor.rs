@@ -376,3 +376,62 @@ impl Conductor {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::chain::Chain;
+    use crate::plan::{Options, Phase};
+    use crate::tape::Tape;
+
+    /// Drive a run on this thread, noting the phase after every task.
+    fn drive(options: Options) -> (Vec<Phase>, Collected, u64) {
+        let model =
+            crate::model::check("mu : real\nsigma : positive\ndensity = normal(mu; 0, 1) * exponential(sigma; 1)\n")
+                .expect("reads");
+        let tape = Tape::new(&model);
+        let config = Options { seed: Some(3), ..options }.resolve(tape.dim()).expect("valid");
+        let mut chains: Vec<Chain> = (0..config.chains).map(|i| Chain::new(&tape, 3, i).expect("starts")).collect();
+        let mut conductor = Conductor::new(config, Shape::of(&tape));
+        let mut phases = vec![conductor.progress().phase];
+        let mut spent = 0;
+        while let Some(task) = conductor.next_task() {
+            let outcomes: Vec<Outcome> = chains.iter_mut().rev().map(|c| c.perform(&tape, &task)).collect();
+            spent += outcomes.iter().map(|o| o.evaluations).sum::<u64>();
+            conductor.absorb(outcomes);
+            if phases.last() != Some(&conductor.progress().phase) {
+                phases.push(conductor.progress().phase);
+            }
+        }
+        (phases, conductor.finish(), spent)
+    }
+
+    #[test]
+    fn a_run_goes_through_its_phases_in_order_and_charges_every_evaluation_to_one() {
+        let small =
+            Options { chains: Some(2), draws: Some(20), warmup: Some(10), pilot: Some(20), ..Options::default() };
+        let cases = [
+            (
+                Options { trials: Some(3), window: Some(10), ..small.clone() },
+                vec![Phase::Pilot, Phase::Tuning, Phase::WarmUp, Phase::Sampling, Phase::Done],
+            ),
+            (
+                Options { tune: Some(Method::Am), trials: Some(2), window: Some(10), pilot: Some(0), ..small.clone() },
+                vec![Phase::Adapting, Phase::WarmUp, Phase::Sampling, Phase::Done],
+            ),
+            (
+                Options { tune: Some(Method::None), warmup: Some(0), ..small },
+                vec![Phase::Pilot, Phase::WarmUp, Phase::Sampling, Phase::Done],
+            ),
+        ];
+        for (options, expected) in cases {
+            let (phases, collected, spent) = drive(options.clone());
+            assert_eq!(phases, expected, "{options:?}");
+            let s = collected.spent;
+            assert_eq!(s.before_sampling() + s.sampling, spent, "{options:?}: {s:?}");
+            assert_eq!(s.sampling, collected.stats.iter().map(|c| c.evaluations).sum::<u64>());
+            assert_eq!(collected.tuning.map_or(0, |t| t.evaluations), s.tuning);
+            assert!(collected.complete && collected.draws.iter().all(|d| d.len() == 20 * 2), "{options:?}");
+        }
+    }
+}

@@ -78,6 +78,8 @@ pub struct Part {
 pub struct Estimate {
     pub chains: usize,
     pub parts: Vec<Part>,
+    /// Bytes a finished run keeps: its draws (and in the page, their copy and CSV text).
+    pub kept: f64,
 }
 
 /// A run refused for its memory.
@@ -225,7 +227,8 @@ impl Estimate {
             let detail = format!("{chains} chains × {} rows of {columns} values", config.draws);
             part("the draws as CSV text", detail, Some(Phase::Sampling), 0.0, 2.0 * text / NUMBER, Opt::Draws);
         }
-        Estimate { chains, parts }
+        let kept = NUMBER * (1.0 + p) * n * draws * c + p * n * draws * (c * CSV_VALUE + CSV_ROW);
+        Estimate { chains, parts, kept }
     }
 
     /// What the runs of `plan` need: they run one after another, and the chosen run's draws
@@ -236,18 +239,15 @@ impl Estimate {
             .iter()
             .map(|config| Estimate::of(config, shape, face))
             .max_by(|a, b| a.peak().total_cmp(&b.peak()))
-            .unwrap_or(Estimate { chains: 0, parts: Vec::new() });
+            .unwrap_or(Estimate { chains: 0, parts: Vec::new(), kept: 0.0 });
         if plan.runs.len() > 1 {
-            let chosen = Estimate::of(plan.config(), shape, face);
-            let kept: Vec<&Part> = chosen.parts.iter().filter(|p| p.phase == Some(Phase::Sampling)).collect();
-            let draws = kept.iter().find(|p| p.what == "the draws").map_or(0.0, |p| p.shared);
-            let texts = kept.iter().find(|p| p.what == "the draws as CSV text").map_or(0.0, |p| p.shared / 2.0);
+            let chosen = plan.config();
             largest.parts.push(Part {
                 what: "the chosen method's draws, kept while the others run",
-                detail: kept.first().map_or_else(String::new, |p| p.detail.clone()),
+                detail: format!("{} chains × {} draws × {} values", chosen.chains, chosen.draws, shape.columns),
                 phase: None,
                 per_chain: 0.0,
-                shared: draws + texts,
+                shared: Estimate::of(chosen, shape, face).kept,
                 lowered_by: Opt::Draws,
             });
         }
