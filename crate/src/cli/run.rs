@@ -78,14 +78,13 @@ pub fn run(args: &RunArgs) -> Result<String, Failure> {
     };
     bar.finish();
     if let Some(path) = &args.csv {
-        std::fs::write(path, report::csv(&collected, tape.columns()))
-            .map_err(|e| format!("cannot write `{path}`: {e}"))?;
+        super::write_file(path, &report::csv(&collected, tape.columns()))?;
     }
     let json = serde_json::to_string_pretty(&report)? + "\n";
     match args.json.as_deref() {
         Some("-") => Ok(json),
         Some(path) => {
-            std::fs::write(path, json).map_err(|e| format!("cannot write `{path}`: {e}"))?;
+            super::write_file(path, &json)?;
             Ok(report::table(&report, &name))
         }
         None => Ok(report::table(&report, &name)),

@@ -93,13 +93,13 @@ pub fn draws_table(report: &DrawsReport) -> String {
         }
     );
     quantity_table(&mut out, &report.quantities, &[]);
-    let _ = writeln!(out, "\nchain  {:>10}  from", "draws");
+    let _ = writeln!(out, "\nchain     draws  from");
     for c in &report.chain_sources {
         let from = match &c.label {
             Some(label) => format!("{}, chain `{label}`", c.file),
             None => c.file.clone(),
         };
-        let _ = writeln!(out, "{:>5}  {:>10}  {from}", c.chain, c.draws);
+        let _ = writeln!(out, "{:>5}  {:>8}  {from}", c.chain, c.draws);
     }
     out.push('\n');
     closing(&mut out, &report.warnings);
