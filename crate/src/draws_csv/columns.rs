@@ -82,7 +82,7 @@ impl Scan {
                     }
                 };
                 rows += 1;
-                if rows % PROGRESS_ROWS == 0 {
+                if rows.is_multiple_of(PROGRESS_ROWS) {
                     progress(bytes_before + reader.position().byte());
                 }
                 // Chains cut to the shortest keep their first draws.

@@ -198,7 +198,7 @@ pub fn scan(sources: &[&dyn Source], options: &Options, progress: &mut dyn FnMut
             this.draws += 1;
             this.last = (line, byte);
             rows += 1;
-            if rows % PROGRESS_ROWS == 0 {
+            if rows.is_multiple_of(PROGRESS_ROWS) {
                 progress(bytes_before + reader.position().byte());
             }
         }
