@@ -4,16 +4,11 @@
 // button that saves it as a PNG.
 
 import uPlot from 'uplot';
+import { h } from './dom.js';
 import { axisPosition, axisValue, bestGridPoint, histograms, runningBest, surrogateSlice } from './draws.js';
 import { INK, chainColour, chainDash, rampColour, withAlpha } from './palette.js';
 
 const FONT = '12px system-ui, -apple-system, "Segoe UI", "DejaVu Sans", sans-serif';
-
-function h(tag, props = {}, ...children) {
-  const element = Object.assign(document.createElement(tag), props);
-  element.append(...children.filter((c) => c !== null && c !== undefined));
-  return element;
-}
 
 /** An axis in the page's style; `extra` overrides. */
 function axis(label, extra = {}) {

@@ -7,10 +7,10 @@
 //! draws needs to hold only one quantity's draws at once.
 
 use super::{CAUTION, Quantity};
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 /// How the chains of a set of files were told apart.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Layout {
     /// A `chain` column labels the chain of every row (one file or several).
