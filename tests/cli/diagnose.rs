@@ -70,28 +70,93 @@ type Case = (&'static str, &'static [(&'static str, &'static [u8])], &'static [&
 
 const CASES: &[Case] = &[
     ("an empty file", &[("e.csv", b"")], &[], "e.csv:1:1: error: the file is empty"),
-    ("a header only", &[("h.csv", b"chain,iteration,mu\n")], &[], "h.csv:2:1: error: the file names its columns but holds no draws"),
-    ("a header only, CRLF", &[("h.csv", b"mu,sigma\r\n")], &[], "h.csv:2:1: error: the file names its columns but holds no draws"),
-    ("no header: numbers", &[("n.csv", b"1.5,2\n3,4\n")], &[], "n.csv:1:1: error: the first line holds numbers, not column names"),
-    ("a repeated name", &[("d.csv", b"mu,sigma,mu\n1,2,3\n")], &[], "d.csv:1:10: error: the column name `mu` is used twice (first for column 1)"),
-    ("a repeated name after a BOM", &[("d.csv", b"\xef\xbb\xbfmu,mu\n1,2\n")], &[], "d.csv:1:4: error: the column name `mu` is used twice"),
+    (
+        "a header only",
+        &[("h.csv", b"chain,iteration,mu\n")],
+        &[],
+        "h.csv:2:1: error: the file names its columns but holds no draws",
+    ),
+    (
+        "a header only, CRLF",
+        &[("h.csv", b"mu,sigma\r\n")],
+        &[],
+        "h.csv:2:1: error: the file names its columns but holds no draws",
+    ),
+    (
+        "no header: numbers",
+        &[("n.csv", b"1.5,2\n3,4\n")],
+        &[],
+        "n.csv:1:1: error: the first line holds numbers, not column names",
+    ),
+    (
+        "a repeated name",
+        &[("d.csv", b"mu,sigma,mu\n1,2,3\n")],
+        &[],
+        "d.csv:1:10: error: the column name `mu` is used twice (first for column 1)",
+    ),
+    (
+        "a repeated name after a BOM",
+        &[("d.csv", b"\xef\xbb\xbfmu,mu\n1,2\n")],
+        &[],
+        "d.csv:1:4: error: the column name `mu` is used twice",
+    ),
     ("an unnamed column", &[("u.csv", b"mu,,sigma\n1,2,3\n")], &[], "u.csv:1:4: error: column 2 has no name"),
-    ("a trailing comma in the header", &[("u.csv", b"mu,sigma,\n1,2,\n")], &[], "u.csv:1:10: error: column 3 has no name"),
-    ("a name that is not UTF-8", &[("u.csv", b"m\xffu\n1\n")], &[], "u.csv:1:1: error: the name of column 1 is not UTF-8 text"),
+    (
+        "a trailing comma in the header",
+        &[("u.csv", b"mu,sigma,\n1,2,\n")],
+        &[],
+        "u.csv:1:10: error: column 3 has no name",
+    ),
+    (
+        "a name that is not UTF-8",
+        &[("u.csv", b"m\xffu\n1\n")],
+        &[],
+        "u.csv:1:1: error: the name of column 1 is not UTF-8 text",
+    ),
     ("only bookkeeping columns", &[("b.csv", b"chain,iteration\n1,1\n")], &[], "b.csv:1:1: error: no columns of draws"),
-    ("a row too long", &[("r.csv", b"mu,sigma\n1,2\n3,4,5\n")], &[], "r.csv:3:5: error: this row has 3 cells, but the header names 2 columns"),
-    ("a row too short", &[("r.csv", b"mu,sigma\n1,2\n3\n")], &[], "r.csv:3:2: error: this row has 1 cell, but the header names 2 columns"),
+    (
+        "a row too long",
+        &[("r.csv", b"mu,sigma\n1,2\n3,4,5\n")],
+        &[],
+        "r.csv:3:5: error: this row has 3 cells, but the header names 2 columns",
+    ),
+    (
+        "a row too short",
+        &[("r.csv", b"mu,sigma\n1,2\n3\n")],
+        &[],
+        "r.csv:3:2: error: this row has 1 cell, but the header names 2 columns",
+    ),
     ("a blank-looking row", &[("r.csv", b"mu,sigma\n1,2\n   \n")], &[], "r.csv:3:4: error: this row has 1 cell"),
     ("a word", &[("w.csv", b"mu\n1\nabc\n")], &[], "w.csv:3:1: error: `abc` is not a number (column `mu`)"),
-    ("a missing value written NA", &[("w.csv", b"mu,sigma\n1,NA\n")], &[], "w.csv:2:3: error: `NA` is not a number (column `sigma`)"),
+    (
+        "a missing value written NA",
+        &[("w.csv", b"mu,sigma\n1,NA\n")],
+        &[],
+        "w.csv:2:3: error: `NA` is not a number (column `sigma`)",
+    ),
     ("a decimal comma", &[("w.csv", b"mu\n\"1,5\"\n")], &[], "w.csv:2:1: error: `1,5` is not a number"),
     ("NaN", &[("f.csv", b"mu\n1\nNaN\n")], &[], "f.csv:3:1: error: `NaN` is not a finite number (column `mu`)"),
     ("minus infinity", &[("f.csv", b"mu\n-inf\n")], &[], "f.csv:2:1: error: `-inf` is not a finite number"),
     ("a number too large", &[("f.csv", b"mu\n1\n1e999\n")], &[], "f.csv:3:1: error: `1e999` is not a finite number"),
     ("an empty cell", &[("c.csv", b"mu,sigma\n1,\n")], &[], "c.csv:2:3: error: the cell of `sigma` is empty"),
-    ("CRLF line ends", &[("l.csv", b"mu,sigma\r\n1,2\r\n3,oops\r\n")], &[], "l.csv:3:3: error: `oops` is not a number (column `sigma`)"),
-    ("quoted fields", &[("q.csv", b"\"a,b\",c\n\"1\",\"x\"\n")], &[], "q.csv:2:5: error: `x` is not a number (column `c`)"),
-    ("a line break inside a quoted name", &[("q.csv", b"\"m\n1\",c\n1,2\n3,q\n")], &[], "q.csv:4:3: error: `q` is not a number (column `c`)"),
+    (
+        "CRLF line ends",
+        &[("l.csv", b"mu,sigma\r\n1,2\r\n3,oops\r\n")],
+        &[],
+        "l.csv:3:3: error: `oops` is not a number (column `sigma`)",
+    ),
+    (
+        "quoted fields",
+        &[("q.csv", b"\"a,b\",c\n\"1\",\"x\"\n")],
+        &[],
+        "q.csv:2:5: error: `x` is not a number (column `c`)",
+    ),
+    (
+        "a line break inside a quoted name",
+        &[("q.csv", b"\"m\n1\",c\n1,2\n3,q\n")],
+        &[],
+        "q.csv:4:3: error: `q` is not a number (column `c`)",
+    ),
     ("an unclosed quote", &[("q.csv", b"mu,sigma\n1,\"2\n3,4\n")], &[], "q.csv:2:3: error: `2\\n3,4` is not a number"),
     (
         "chains of unequal length",
@@ -111,7 +176,12 @@ const CASES: &[Case] = &[
         &[],
         "i.csv:4:3: error: iteration 2 comes after iteration 2 (line 3) in chain `1` of i.csv",
     ),
-    ("an iteration that is not whole", &[("i.csv", b"iteration,mu\n1.5,0\n")], &[], "i.csv:2:1: error: the iteration `1.5` is not a whole number"),
+    (
+        "an iteration that is not whole",
+        &[("i.csv", b"iteration,mu\n1.5,0\n")],
+        &[],
+        "i.csv:2:1: error: the iteration `1.5` is not a whole number",
+    ),
     ("an empty chain label", &[("c.csv", b"chain,mu\n,1\n")], &[], "c.csv:2:1: error: the chain label is empty"),
     (
         "one chain in two files",
@@ -163,7 +233,8 @@ fn every_malformed_file_is_refused_with_its_place_and_status_2() {
         let out = diagnose(&case, &args);
         let stderr = text(&out.stderr);
         if out.status.code() != Some(2) || !stderr.starts_with(expected) || !out.stdout.is_empty() {
-            problems.push(format!("{what}: expected status 2 and `{expected}…`, got {:?}: {stderr}", out.status.code()));
+            problems
+                .push(format!("{what}: expected status 2 and `{expected}…`, got {:?}: {stderr}", out.status.code()));
         }
     }
     assert!(problems.is_empty(), "{} problems:\n{}", problems.len(), problems.join("\n"));
@@ -281,7 +352,8 @@ fn chains_shifted_apart_are_flagged_by_rhat() {
         let apart = report(&dir, &["apart.csv"]);
         let rhat = apart["quantities"][0]["rhat"].as_f64().expect("R-hat");
         assert!((1.075..=1.13).contains(&rhat), "seed {seed}: shifted R-hat {rhat}");
-        let warnings: Vec<&str> = apart["warnings"].as_array().expect("warnings").iter().filter_map(|w| w.as_str()).collect();
+        let warnings: Vec<&str> =
+            apart["warnings"].as_array().expect("warnings").iter().filter_map(|w| w.as_str()).collect();
         assert!(
             warnings.iter().any(|w| w.starts_with("theta: R-hat is") && w.contains("above 1.01 (Vehtari et al. 2021)")),
             "seed {seed}: {warnings:?}"
@@ -298,7 +370,9 @@ fn a_single_chain_is_judged_and_said() {
     let json = report(&dir, &["one.csv"]);
     assert_eq!(json["chains"], 1);
     assert!(json["quantities"][0]["rhat"].as_f64().is_some_and(f64::is_finite));
-    assert!(json["warnings"][0].as_str().expect("a warning").starts_with("there is only one chain (chain `1` of one.csv)"));
+    assert!(
+        json["warnings"][0].as_str().expect("a warning").starts_with("there is only one chain (chain `1` of one.csv)")
+    );
 }
 
 /// Chains cut to the shortest, when asked, are summarised over their first draws, and said to be.
@@ -359,9 +433,14 @@ fn diagnose_reproduces_the_summary_of_run() {
         let mut quantities = run["parameters"].as_array().expect("parameters").clone();
         quantities.extend(run["derived"].as_array().expect("derived").iter().cloned());
         assert_eq!(judged["quantities"].as_array().expect("quantities"), &quantities, "{name}");
-        let about_quantities: Vec<&serde_json::Value> =
-            run["warnings"].as_array().expect("warnings").iter().filter(|w| !w.as_str().unwrap_or("").starts_with("chain ")).collect();
-        let judged_warnings: Vec<&serde_json::Value> = judged["warnings"].as_array().expect("warnings").iter().collect();
+        let about_quantities: Vec<&serde_json::Value> = run["warnings"]
+            .as_array()
+            .expect("warnings")
+            .iter()
+            .filter(|w| !w.as_str().unwrap_or("").starts_with("chain "))
+            .collect();
+        let judged_warnings: Vec<&serde_json::Value> =
+            judged["warnings"].as_array().expect("warnings").iter().collect();
         assert_eq!(judged_warnings, about_quantities, "{name}");
         let table = text(&diagnose(&dir, &[&format!("{name}.csv")]).stdout);
         assert_eq!(table_rows(&table), table_rows(&run_table), "{name}:\n{table}\n{run_table}");
@@ -405,7 +484,11 @@ fn a_tiny_memory_budget_reads_in_passes_with_the_same_report() {
     let budget = format!("{}", copy * 12.5);
     let out = diagnose(&dir, &["wide.csv", "--max-memory", &budget]);
     assert_eq!(out.status.code(), Some(2));
-    assert!(text(&out.stderr).starts_with("judging one quantity of 3 chains × 400 draws needs about"), "{}", text(&out.stderr));
+    assert!(
+        text(&out.stderr).starts_with("judging one quantity of 3 chains × 400 draws needs about"),
+        "{}",
+        text(&out.stderr)
+    );
 }
 
 /// Writing to a pipe whose reader has gone (`… --json - | head -1`) ends quietly with success:
@@ -492,7 +575,9 @@ fn a_gigabyte_of_draws_is_judged_in_bounded_memory() {
         .and_then(|v| v.trim().parse().ok())
         .expect("time -v reports the peak resident set");
     let peak_mib = peak_kib / 1024.0;
-    println!("{size} bytes, {chains} chains × {len} draws × {quantities} quantities: {seconds:.1} s, peak RSS {peak_mib:.0} MiB");
+    println!(
+        "{size} bytes, {chains} chains × {len} draws × {quantities} quantities: {seconds:.1} s, peak RSS {peak_mib:.0} MiB"
+    );
     assert!(peak_mib < budget_gib * 1024.0 + 64.0, "peak RSS {peak_mib:.0} MiB over the {budget_gib} GiB budget");
     let json: serde_json::Value =
         serde_json::from_slice(&std::fs::read(dir.join("report.json")).expect("the report")).expect("JSON");

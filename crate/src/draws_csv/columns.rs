@@ -100,7 +100,10 @@ impl Scan {
         for (chain, info) in self.chains.iter().enumerate() {
             if columns.first().is_some_and(|c| c[chain].len() != self.draws) {
                 let source = sources[info.file];
-                return Err(ReadError::of_file(source, "the file changed while it was being read; read it again".into()));
+                return Err(ReadError::of_file(
+                    source,
+                    "the file changed while it was being read; read it again".into(),
+                ));
             }
         }
         Ok(columns)

@@ -24,25 +24,31 @@ pub(super) struct Header {
 
 /// Read the header `record` (at `line`, byte `offset`) of `source`, in the layout given or, with
 /// `None`, the one it names.
-pub(super) fn read(
-    source: &dyn Source,
-    record: &csv::ByteRecord,
-    layout: Option<Layout>,
-) -> Result<Header, ReadError> {
+pub(super) fn read(source: &dyn Source, record: &csv::ByteRecord, layout: Option<Layout>) -> Result<Header, ReadError> {
     let row = record.position().map_or((1, 0), |p| (p.line(), p.byte()));
     let fail = |field: usize, message: String| ReadError::in_row(source, row, field, message);
     if record.len() > MAX_COLUMNS {
-        return Err(fail(MAX_COLUMNS, format!("the header names {} columns, more than the limit of {MAX_COLUMNS}", record.len())));
+        return Err(fail(
+            MAX_COLUMNS,
+            format!("the header names {} columns, more than the limit of {MAX_COLUMNS}", record.len()),
+        ));
     }
     let mut names = Vec::with_capacity(record.len());
     let mut seen: HashMap<&str, usize> = HashMap::new();
     for (field, cell) in record.iter().enumerate() {
-        let name = std::str::from_utf8(cell).map_err(|_| fail(field, format!("the name of column {} is not UTF-8 text", field + 1)))?;
+        let name = std::str::from_utf8(cell)
+            .map_err(|_| fail(field, format!("the name of column {} is not UTF-8 text", field + 1)))?;
         if name.is_empty() {
-            return Err(fail(field, format!("column {} has no name: the first line must name every column", field + 1)));
+            return Err(fail(
+                field,
+                format!("column {} has no name: the first line must name every column", field + 1),
+            ));
         }
         if let Some(first) = seen.insert(name, field) {
-            return Err(fail(field, format!("the column name `{name}` is used twice (first for column {})", first + 1)));
+            return Err(fail(
+                field,
+                format!("the column name `{name}` is used twice (first for column {})", first + 1),
+            ));
         }
         names.push(name);
     }

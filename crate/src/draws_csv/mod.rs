@@ -152,8 +152,10 @@ fn shown(cell: &[u8]) -> String {
     let text = String::from_utf8_lossy(cell);
     let cut = text.char_indices().nth(40).map_or(text.len(), |(at, _)| at);
     let more = if cut < text.len() { "…" } else { "" };
-    let escaped: String =
-        text[..cut].chars().map(|c| if c.is_control() { c.escape_default().to_string() } else { c.to_string() }).collect();
+    let escaped: String = text[..cut]
+        .chars()
+        .map(|c| if c.is_control() { c.escape_default().to_string() } else { c.to_string() })
+        .collect();
     escaped + more
 }
 

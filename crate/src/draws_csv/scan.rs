@@ -143,7 +143,10 @@ pub fn scan(sources: &[&dyn Source], options: &Options, progress: &mut dyn FnMut
             if record.len() != header.width {
                 let field = record.len().min(header.width);
                 let cells = if record.len() == 1 { "1 cell".to_string() } else { format!("{} cells", record.len()) };
-                return Err(fail(field, format!("this row has {cells}, but the header names {} columns", header.width)));
+                return Err(fail(
+                    field,
+                    format!("this row has {cells}, but the header names {} columns", header.width),
+                ));
             }
             let index = match chain {
                 ChainOfRow::Whole(index) => index,
@@ -184,7 +187,9 @@ pub fn scan(sources: &[&dyn Source], options: &Options, progress: &mut dyn FnMut
                     fail(
                         *field,
                         match bad {
-                            BadCell::Empty => format!("the cell of `{name}` is empty: every row needs a draw of every quantity"),
+                            BadCell::Empty => {
+                                format!("the cell of `{name}` is empty: every row needs a draw of every quantity")
+                            }
                             BadCell::NotANumber => format!("`{}` is not a number (column `{name}`)", shown(cell)),
                             BadCell::NotFinite => format!(
                                 "`{}` is not a finite number (column `{name}`): draws must be finite; NaN or infinite \
@@ -248,7 +253,13 @@ struct Found {
 }
 
 impl Found {
-    fn add(&mut self, source: &dyn Source, file: usize, label: Option<String>, at: (u64, u64)) -> Result<usize, ReadError> {
+    fn add(
+        &mut self,
+        source: &dyn Source,
+        file: usize,
+        label: Option<String>,
+        at: (u64, u64),
+    ) -> Result<usize, ReadError> {
         if self.chains.len() == MAX_CHAINS {
             return Err(ReadError::at(
                 source,
@@ -311,7 +322,8 @@ fn agree(
     let row = record.position().map_or((1, 0), |p| (p.line(), p.byte()));
     let fail = |field: usize, message: String| ReadError::in_row(source, row, field, message);
     if header.layout != layout {
-        let (has, lacks) = if header.layout == Layout::ChainColumn { ("this file", first) } else { (first, "this file") };
+        let (has, lacks) =
+            if header.layout == Layout::ChainColumn { ("this file", first) } else { (first, "this file") };
         return Err(fail(
             0,
             format!("{has} has a `{}` column but {lacks} has not: all files must be laid out alike", header::CHAIN),
@@ -321,17 +333,30 @@ fn agree(
     for name in quantities {
         match header.quantities.iter().find(|(_, n)| n == name) {
             Some(&(field, _)) => fields.push(field),
-            None => return Err(fail(0, format!("there is no column `{name}`, which {first} has: all files must have the same columns"))),
+            None => {
+                return Err(fail(
+                    0,
+                    format!("there is no column `{name}`, which {first} has: all files must have the same columns"),
+                ));
+            }
         }
     }
     if let Some((field, name)) = header.quantities.iter().find(|(_, n)| !quantities.contains(n)) {
-        return Err(fail(*field, format!("the column `{name}` is not in {first}: all files must have the same columns")));
+        return Err(fail(
+            *field,
+            format!("the column `{name}` is not in {first}: all files must have the same columns"),
+        ));
     }
     Ok(fields)
 }
 
 /// The draws per chain to use: the common length, or the shortest when `truncate`.
-fn equal_lengths(sources: &[&dyn Source], files: &[FilePlan], chains: &[Chain], truncate: bool) -> Result<usize, ReadError> {
+fn equal_lengths(
+    sources: &[&dyn Source],
+    files: &[FilePlan],
+    chains: &[Chain],
+    truncate: bool,
+) -> Result<usize, ReadError> {
     let Some(shortest) = chains.iter().min_by_key(|c| c.draws) else {
         return Ok(0);
     };
@@ -354,12 +379,12 @@ fn equal_lengths(sources: &[&dyn Source], files: &[FilePlan], chains: &[Chain], 
             shortest.last,
             field,
             format!(
-            "{} ends here after {} draws, but {} has {}: every chain needs the same number of draws, or \
+                "{} ends here after {} draws, but {} has {}: every chain needs the same number of draws, or \
              truncate them all to the shortest to use the first {} of each",
-            shortest.called(source.name()),
-            shortest.draws,
-            longest.called(long_name),
-            longest.draws,
+                shortest.called(source.name()),
+                shortest.draws,
+                longest.called(long_name),
+                longest.draws,
                 shortest.draws
             ),
         )

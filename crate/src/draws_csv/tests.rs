@@ -70,7 +70,10 @@ fn unequal_chains_are_refused_or_cut_to_the_shortest() {
     let text = "chain,x\n1,1\n1,2\n1,3\n2,4\n2,5\n";
     let refused = scanned(&[("u.csv", text)], Options::default()).unwrap_err();
     assert!(refused.truncating_helps);
-    assert!(refused.to_string().starts_with("u.csv:6:1: error: chain `2` of u.csv ends here after 2 draws, but chain `1`"), "{refused}");
+    assert!(
+        refused.to_string().starts_with("u.csv:6:1: error: chain `2` of u.csv ends here after 2 draws, but chain `1`"),
+        "{refused}"
+    );
     let (scan, columns) = scanned(&[("u.csv", text)], Options { layout: None, truncate: true }).unwrap();
     assert_eq!(scan.draws, 2);
     assert_eq!(columns[0], vec![vec![1.0, 2.0], vec![4.0, 5.0]]);

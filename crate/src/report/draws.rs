@@ -101,7 +101,11 @@ mod tests {
     fn one_chain_is_said_and_quantities_follow_the_run_rules() {
         let mut report = DrawsReport::new(vec!["draws.csv".into()], Layout::ChainColumn, vec![source(1)], 8, vec![]);
         assert_eq!(report.warnings.len(), 1);
-        assert!(report.warnings[0].starts_with("there is only one chain (chain `1` of draws.csv)"), "{:?}", report.warnings);
+        assert!(
+            report.warnings[0].starts_with("there is only one chain (chain `1` of draws.csv)"),
+            "{:?}",
+            report.warnings
+        );
         let x = [0.3, 1.2, -0.4, 0.8, 2.0, -1.1, 0.5, 0.1];
         report.add("x", &[&x], 5);
         let (expected, _) = Quantity::of("x", &[&x], 5);

@@ -165,7 +165,15 @@ pub fn method_name(method: &str) -> &'static str {
 
 #[cfg(test)]
 mod tests {
-    use super::significant;
+    use super::{fixed, significant};
+
+    #[test]
+    fn fixed_decimals() {
+        assert_eq!(fixed(1.00049, 3), "1.000");
+        assert_eq!(fixed(412.5001, 0), "413");
+        assert_eq!(fixed(f64::NAN, 3), "—");
+        assert_eq!(fixed(f64::INFINITY, 0), "—");
+    }
 
     #[test]
     fn significant_digits() {

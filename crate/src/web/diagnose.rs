@@ -23,7 +23,12 @@ struct PageOptions {
 /// `Float64Array` per chain (rows of `columns`, as a run's). A problem with the files is an error
 /// whose message is the command line's (`FILE:LINE:COLUMN: error: …`).
 #[wasm_bindgen]
-pub fn diagnose_files(names: JsValue, contents: js_sys::Array, options: JsValue, lags: usize) -> Result<JsValue, JsError> {
+pub fn diagnose_files(
+    names: JsValue,
+    contents: js_sys::Array,
+    options: JsValue,
+    lags: usize,
+) -> Result<JsValue, JsError> {
     let names: Vec<String> = serde_wasm_bindgen::from_value(names)?;
     let options: PageOptions = serde_wasm_bindgen::from_value(options)?;
     let bytes: Vec<Vec<u8>> = contents.iter().map(|c| js_sys::Uint8Array::new(&c).to_vec()).collect();
