@@ -163,7 +163,7 @@ fn shown(cell: &[u8]) -> String {
 /// here), rows of any length (a ragged row is reported here, with its place), spaces trimmed,
 /// `#` lines skipped.
 fn reader<'a>(source: &'a dyn Source, offset: u64) -> Result<csv::Reader<Box<dyn Read + 'a>>, ReadError> {
-    let input = source.open(offset).map_err(|e| io_error(source, &e))?;
+    let input: Box<dyn Read + 'a> = Box::new(ShortLines::new(source.open(offset).map_err(|e| io_error(source, &e))?));
     Ok(csv::ReaderBuilder::new()
         .has_headers(false)
         .flexible(true)
@@ -184,4 +184,37 @@ fn next_record(
     record: &mut csv::ByteRecord,
 ) -> Result<bool, ReadError> {
     reader.read_byte_record(record).map_err(|e| io_error(source, &e))
+}
+
+/// Longest line a file may have: the reader holds a whole row, so a file without line breaks
+/// would otherwise be held whole.
+pub const MAX_LINE_BYTES: usize = 64 << 20;
+
+/// The bytes of a file, refused once a line grows longer than [`MAX_LINE_BYTES`].
+struct ShortLines<R> {
+    inner: R,
+    since_newline: usize,
+}
+
+impl<R: Read> ShortLines<R> {
+    fn new(inner: R) -> Self {
+        ShortLines { inner, since_newline: 0 }
+    }
+}
+
+impl<R: Read> Read for ShortLines<R> {
+    fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
+        let n = self.inner.read(buf)?;
+        self.since_newline = match buf[..n].iter().rposition(|&b| b == b'\n') {
+            Some(at) => n - at - 1,
+            None => self.since_newline + n,
+        };
+        if self.since_newline > MAX_LINE_BYTES {
+            return Err(io::Error::new(
+                io::ErrorKind::InvalidData,
+                format!("a line is longer than {} MiB; a file of draws has a row per line", MAX_LINE_BYTES >> 20),
+            ));
+        }
+        Ok(n)
+    }
 }

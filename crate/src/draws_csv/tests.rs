@@ -112,3 +112,10 @@ fn progress_reaches_the_total() {
     scan(&sources, &Options::default(), &mut |bytes| last = bytes).unwrap();
     assert_eq!(last, 10);
 }
+
+#[test]
+fn a_file_without_line_breaks_is_refused_before_it_is_held_whole() {
+    let text = format!("x\n{}", "1".repeat(MAX_LINE_BYTES + 10));
+    let message = error(&[("long.csv", &text)], Options::default());
+    assert!(message.starts_with("long.csv: error: cannot read the file: a line is longer than 64 MiB"), "{message}");
+}
