@@ -161,45 +161,9 @@ pub fn scan(sources: &[&dyn Source], options: &Options, progress: &mut dyn FnMut
             };
             let this = &mut found.chains[index];
             if let Some(field) = header.iteration {
-                let cell = &record[field];
-                let number = std::str::from_utf8(cell)
-                    .ok()
-                    .and_then(|t| t.parse::<f64>().ok())
-                    .filter(|n| n.is_finite() && n.fract() == 0.0)
-                    .ok_or_else(|| fail(field, format!("the iteration `{}` is not a whole number", shown(cell))))?;
-                if let Some((before, before_line)) = this.last_iteration
-                    && number <= before
-                {
-                    return Err(fail(
-                        field,
-                        format!(
-                            "iteration {number} comes after iteration {before} (line {before_line}) in {}: the draws \
-                             of a chain must be in the order they were made",
-                            this.called(source.name())
-                        ),
-                    ));
-                }
-                this.last_iteration = Some((number, line));
+                check_iteration(this, &record[field], line, source.name(), &|message| fail(field, message))?;
             }
-            for (field, name) in &header.quantities {
-                let cell = &record[*field];
-                parse_draw(cell).map_err(|bad| {
-                    fail(
-                        *field,
-                        match bad {
-                            BadCell::Empty => {
-                                format!("the cell of `{name}` is empty: every row needs a draw of every quantity")
-                            }
-                            BadCell::NotANumber => format!("`{}` is not a number (column `{name}`)", shown(cell)),
-                            BadCell::NotFinite => format!(
-                                "`{}` is not a finite number (column `{name}`): draws must be finite; NaN or infinite \
-                                 draws mean the sampler or the model went wrong",
-                                shown(cell)
-                            ),
-                        },
-                    )
-                })?;
-            }
+            check_draws(&header, &record, &fail)?;
             this.draws += 1;
             this.last = (line, byte);
             rows += 1;
@@ -244,6 +208,56 @@ pub fn scan(sources: &[&dyn Source], options: &Options, progress: &mut dyn FnMut
         ));
     }
     Ok(Scan { layout, quantities, chains, draws, notes, files, labels })
+}
+
+/// Check that the iteration number in `cell`, on `line`, is whole and follows the last of `chain`.
+fn check_iteration(
+    chain: &mut Chain,
+    cell: &[u8],
+    line: u64,
+    file: &str,
+    fail: &dyn Fn(String) -> ReadError,
+) -> Result<(), ReadError> {
+    let number = std::str::from_utf8(cell)
+        .ok()
+        .and_then(|t| t.parse::<f64>().ok())
+        .filter(|n| n.is_finite() && n.fract() == 0.0)
+        .ok_or_else(|| fail(format!("the iteration `{}` is not a whole number", shown(cell))))?;
+    if let Some((before, before_line)) = chain.last_iteration
+        && number <= before
+    {
+        return Err(fail(format!(
+            "iteration {number} comes after iteration {before} (line {before_line}) in {}: the draws of a chain \
+             must be in the order they were made",
+            chain.called(file)
+        )));
+    }
+    chain.last_iteration = Some((number, line));
+    Ok(())
+}
+
+/// Check that every quantity's cell of `record` holds a finite number.
+fn check_draws(
+    header: &Header,
+    record: &csv::ByteRecord,
+    fail: &dyn Fn(usize, String) -> ReadError,
+) -> Result<(), ReadError> {
+    for (field, name) in &header.quantities {
+        let cell = &record[*field];
+        parse_draw(cell).map_err(|bad| {
+            let message = match bad {
+                BadCell::Empty => format!("the cell of `{name}` is empty: every row needs a draw of every quantity"),
+                BadCell::NotANumber => format!("`{}` is not a number (column `{name}`)", shown(cell)),
+                BadCell::NotFinite => format!(
+                    "`{}` is not a finite number (column `{name}`): draws must be finite; NaN or infinite draws \
+                     mean the sampler or the model went wrong",
+                    shown(cell)
+                ),
+            };
+            fail(*field, message)
+        })?;
+    }
+    Ok(())
 }
 
 /// The chains found so far, in order of appearance, and the chain of each label.
