@@ -8,6 +8,7 @@
 pub mod chain;
 pub mod diag;
 pub mod dist;
+pub mod draws_csv;
 pub mod kernel;
 pub mod lang;
 pub mod link;

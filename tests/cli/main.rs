@@ -3,6 +3,7 @@
 
 mod bad_inputs;
 mod commands;
+mod diagnose;
 mod golden;
 mod malformed;
 mod plan;

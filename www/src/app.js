@@ -4,6 +4,8 @@
 // browser on every change, and nothing the user typed is replaced without a way back.
 
 import 'uplot/dist/uPlot.min.css';
+import { setupDiagnose } from './diagnose.js';
+import { download, h } from './dom.js';
 import { createEditor, replaceText, showDiagnostic } from './editor.js';
 import { checkModel, defaultSettings, makeLink, readLink, startEngine } from './engine.js';
 import { markCurrentExample, showCheck, showEngineFailure, showGallery, showOutline } from './panels.js';
@@ -30,12 +32,6 @@ const OWN_SETTING_NOTES = {
   none: 'The chains sample with exactly this setting.',
 };
 
-function h(tag, props = {}, ...children) {
-  const element = Object.assign(document.createElement(tag), props);
-  element.append(...children.filter((c) => c !== null && c !== undefined));
-  return element;
-}
-
 async function loadExamples() {
   const response = await fetch(new URL('./examples.json', import.meta.url));
   if (!response.ok) throw new Error(`examples.json: ${response.status} ${response.statusText}`);
@@ -59,16 +55,6 @@ function trackChromeHeights() {
   observer.observe(document.querySelector('.masthead'));
   observer.observe(document.querySelector('.caution'));
   observer.observe(document.getElementById('link-banner'));
-}
-
-/** Save `text` as a file called `name`. */
-function download(name, text, type) {
-  const url = URL.createObjectURL(new Blob([text], { type }));
-  const link = h('a', { href: url, download: name });
-  document.body.append(link);
-  link.click();
-  link.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 10_000);
 }
 
 async function main() {
@@ -439,6 +425,7 @@ async function main() {
     return;
   }
   engineReady = true;
+  setupDiagnose({ card: $('draws-card'), resultsArea });
   writeForm(form, { ...initialValues(), ...(loadForm() ?? {}) });
   check();
   openLink();

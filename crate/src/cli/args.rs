@@ -24,6 +24,9 @@ pub enum Command {
     Run(RunArgs),
     /// Print a link that carries a model and a run, for the page or `mixwell run --link`.
     Link(LinkArgs),
+    /// Judge draws from CSV files made by any sampler: the same summary, diagnostics and
+    /// warnings as `run`.
+    Diagnose(super::diagnose::DiagnoseArgs),
 }
 
 #[derive(Args, Debug)]

@@ -1,14 +1,14 @@
 //! `mixwell run`: tune, sample, then print the summary and write the report and draws.
 
 use super::args::RunArgs;
-use super::{Failure, load};
+use super::{Failure, load, write_file};
 use crate::chain::conductor::{Collected, Progress};
 use crate::chain::threads;
 use crate::names::Named;
 use crate::plan::{Estimate, Face, Phase, Plan, PlanError, RunConfig, Shape};
 use crate::report::{self, Comparison, Report};
 use crate::tape::Tape;
-use std::io::{IsTerminal, Write};
+use std::io::IsTerminal;
 use std::time::Instant;
 
 const GIB: f64 = (1u64 << 30) as f64;
@@ -90,12 +90,6 @@ fn guard_memory(plan: &Plan, shape: Shape, max_gib: f64) -> Result<(), Failure> 
 }
 
 /// Write a file through a buffer, naming it in any error.
-fn write_file(path: &str, write: impl FnOnce(&mut dyn Write) -> std::io::Result<()>) -> Result<(), Failure> {
-    let cannot = |e: std::io::Error| Failure(format!("cannot write `{path}`: {e}"));
-    let mut out = std::io::BufWriter::new(std::fs::File::create(path).map_err(cannot)?);
-    write(&mut out).and_then(|()| out.flush()).map_err(cannot)
-}
-
 /// One run, and the seconds its sampling phase took (wall clock).
 fn execute(tape: &Tape, config: RunConfig, bar: &Bar) -> Result<(Collected, f64), Failure> {
     let mut sampling_started: Option<Instant> = None;

@@ -4,9 +4,11 @@
 //!
 //! The field names of the JSON report are a contract that other tools read; keep them stable.
 
+mod draws;
 mod text;
 
-pub use text::table;
+pub use draws::{ChainSource, DrawsReport, Layout};
+pub use text::{draws_table, fixed, significant, table};
 
 use crate::chain::conductor::{Collected, TuningRecord};
 use crate::diag::{self, Summary};
@@ -55,6 +57,16 @@ pub struct Quantity {
     pub autocorrelation: Vec<f64>,
 }
 
+impl Quantity {
+    /// The summary, diagnostics and autocorrelation (lags 0 to `lags`) of one quantity from its
+    /// draws, one slice per chain, with the warnings they call for.
+    pub fn of(name: &str, chains: &[&[f64]], lags: usize) -> (Quantity, Vec<String>) {
+        let summary = diag::summarise(chains);
+        let warnings = diag::warnings(name, &summary, chains.len(), &diag::Thresholds::default());
+        (Quantity { name: name.to_string(), autocorrelation: diag::autocorrelation(chains, lags), summary }, warnings)
+    }
+}
+
 #[derive(Clone, Debug, Serialize)]
 pub struct ChainReport {
     /// 1-based, as printed.
@@ -84,9 +96,9 @@ impl Report {
                 let per_chain: Vec<Vec<f64>> =
                     collected.draws.iter().map(|rows| rows.iter().skip(c).step_by(width).copied().collect()).collect();
                 let slices: Vec<&[f64]> = per_chain.iter().map(Vec::as_slice).collect();
-                let summary = diag::summarise(&slices);
-                warnings.extend(diag::warnings(name, &summary, slices.len(), &diag::Thresholds::default()));
-                Quantity { name: name.clone(), autocorrelation: diag::autocorrelation(&slices, lags), summary }
+                let (quantity, said) = Quantity::of(name, &slices, lags);
+                warnings.extend(said);
+                quantity
             })
             .collect();
         let chain_stats: Vec<ChainReport> = collected
