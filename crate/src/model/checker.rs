@@ -255,7 +255,8 @@ impl<'s> Checker<'s> {
     }
 
     fn evaluate(&self, node: &Node) -> Vec<f64> {
-        crate::tape::evaluate_constant(node, &self.constants, &self.mvnormals)
+        debug_assert!(node.constant);
+        super::eval::Evaluator::constants(&self.constants, &self.mvnormals).value(node).into_owned()
     }
 
     fn bind(&mut self, name: &Ident, value: &Expr) -> Result<(), Diagnostic> {

@@ -3,6 +3,8 @@
 
 pub mod builtins;
 mod checker;
+pub mod compute;
+pub(crate) mod eval;
 pub mod support;
 
 use crate::dist::{Family, MvNormal};
@@ -141,6 +143,32 @@ pub enum NodeKind {
         x: Box<Node>,
         mean: Box<Node>,
     },
+}
+
+impl Node {
+    /// The nodes this one is computed from, in order.
+    pub fn children(&self) -> Vec<&Node> {
+        match &self.kind {
+            NodeKind::Constant(_) | NodeKind::Parameter(_) | NodeKind::Derived(_) => Vec::new(),
+            NodeKind::Map(_, x) | NodeKind::Reduce(_, x) | NodeKind::Gather(x, _) => vec![x],
+            NodeKind::Zip(_, a, b) | NodeKind::Dot(a, b) | NodeKind::MatVec(a, b) => vec![a, b],
+            NodeKind::Stack(items) => items.iter().collect(),
+            NodeKind::LogDensity { x, params, .. } => std::iter::once(&**x).chain(params).collect(),
+            NodeKind::MvNormal { x, mean, .. } => vec![x, mean],
+        }
+    }
+
+    /// Indices of the derived quantities and intermediates this node names directly (not those
+    /// they name in turn).
+    pub fn derived_refs(&self, out: &mut Vec<usize>) {
+        let mut stack = vec![self];
+        while let Some(node) = stack.pop() {
+            match node.kind {
+                NodeKind::Derived(i) => out.push(i),
+                _ => stack.extend(node.children()),
+            }
+        }
+    }
 }
 
 /// A model ready to compile.

@@ -36,13 +36,6 @@ pub(crate) fn compile(model: &Model) -> Tape {
     }
 }
 
-pub(crate) fn evaluate_constant(node: &Node, constants: &[Constant], mvnormals: &[MvNormal]) -> Vec<f64> {
-    debug_assert!(node.constant);
-    let mut c = Compiler::new(constants, &[], mvnormals);
-    let at = c.node(node);
-    c.tape.template[at..at + node.shape.len()].to_vec()
-}
-
 struct Compiler<'m> {
     constants: &'m [Constant],
     derived: &'m [Derived],
@@ -108,9 +101,27 @@ impl<'m> Compiler<'m> {
         if let Some(slot) = self.derived_slots[i] {
             return slot;
         }
-        let slot = self.node(&self.derived[i].node);
-        self.derived_slots[i] = Some(slot);
-        slot
+        // Compile the uncompiled quantities this one needs first, in definition order (each
+        // names only earlier ones), so compiling never recurses along a long chain of names.
+        let mut needed = vec![i];
+        let mut seen = std::collections::HashSet::from([i]);
+        let mut k = 0;
+        while k < needed.len() {
+            let mut refs = Vec::new();
+            self.derived[needed[k]].node.derived_refs(&mut refs);
+            for j in refs {
+                if self.derived_slots[j].is_none() && seen.insert(j) {
+                    needed.push(j);
+                }
+            }
+            k += 1;
+        }
+        needed.sort_unstable();
+        for j in needed {
+            let slot = self.node(&self.derived[j].node);
+            self.derived_slots[j] = Some(slot);
+        }
+        self.derived_slots[i].expect("compiled above")
     }
 
     /// Compile `node`; returns the first slot of its value.

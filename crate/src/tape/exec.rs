@@ -1,8 +1,9 @@
-//! Running one instruction. This is the evaluator's inner loop: no allocation, no failure.
+//! Running one instruction. This is the evaluator's inner loop: no allocation, no failure. The
+//! arithmetic itself is [`crate::model::compute`], the same code the checker folds constants with.
 
 use super::{Arg, Op, Tables};
-use crate::dist::{self, Col};
-use crate::model::builtins;
+use crate::dist::Col;
+use crate::model::compute;
 
 /// Execute `op`, reading slots before its `dst` and writing from `dst` on.
 #[inline]
@@ -18,27 +19,21 @@ pub(crate) fn run(tables: Tables, op: &Op, theta: &[f64], slots: &mut [f64]) {
         }
         Op::Map { f, src, len, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            for (o, &x) in output[..len].iter_mut().zip(&input[src..src + len]) {
-                *o = f.apply(x);
-            }
+            compute::map(f, &input[src..src + len], &mut output[..len]);
         }
         Op::Zip { f, a, b, len, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            zip(f, column(input, a, len), column(input, b, len), &mut output[..len]);
+            compute::zip(f, column(input, a, len), column(input, b, len), &mut output[..len]);
         }
-        Op::Reduce { f, src, len, dst } => slots[dst] = f.apply(&slots[src..src + len]),
-        Op::Dot { a, b, len, dst } => {
-            slots[dst] = slots[a..a + len].iter().zip(&slots[b..b + len]).map(|(x, y)| x * y).sum();
-        }
+        Op::Reduce { f, src, len, dst } => slots[dst] = compute::reduce(f, &slots[src..src + len]),
+        Op::Dot { a, b, len, dst } => slots[dst] = compute::dot(&slots[a..a + len], &slots[b..b + len]),
         Op::MatVec { m, v, rows, cols, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            builtins::matvec(&input[m..m + rows * cols], &input[v..v + cols], &mut output[..rows]);
+            compute::matvec(&input[m..m + rows * cols], &input[v..v + cols], &mut output[..rows]);
         }
         Op::Gather { src, from, to, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            for (o, &p) in output.iter_mut().zip(&tables.positions[from..to]) {
-                *o = input[src + p];
-            }
+            compute::gather(&input[src..], &tables.positions[from..to], &mut output[..to - from]);
         }
         Op::Stack { from, to, item_len, dst } => {
             let (input, output) = slots.split_at_mut(dst);
@@ -49,7 +44,7 @@ pub(crate) fn run(tables: Tables, op: &Op, theta: &[f64], slots: &mut [f64]) {
         Op::LogDensity { family, n, x, params, arity, dst } => {
             let (input, output) = slots.split_at_mut(dst);
             let cols = params.map(|p| column(input, p, n));
-            output[0] = dist::sum_log_density(family, n, column(input, x, n), &cols[..arity]);
+            output[0] = compute::log_density_sum(family, n, column(input, x, n), &cols[..arity]);
         }
         Op::MvNormal { index, x, mean, dst } => {
             let (input, output) = slots.split_at_mut(dst);
@@ -65,28 +60,5 @@ fn column(slots: &[f64], arg: Arg, len: usize) -> Col<'_> {
         Col::scalar(&slots[arg.offset..arg.offset + 1])
     } else {
         Col::vector(&slots[arg.offset..arg.offset + len])
-    }
-}
-
-/// Element-wise `f`, with the common cases written as plain loops the compiler can vectorise.
-#[inline]
-fn zip(f: builtins::BinaryFn, a: Col, b: Col, out: &mut [f64]) {
-    use builtins::BinaryFn::*;
-    match f {
-        Add => zip_with(a, b, out, |x, y| x + y),
-        Sub => zip_with(a, b, out, |x, y| x - y),
-        Mul => zip_with(a, b, out, |x, y| x * y),
-        Div => zip_with(a, b, out, |x, y| x / y),
-        _ => zip_with(a, b, out, |x, y| f.apply(x, y)),
-    }
-}
-
-#[inline(always)]
-fn zip_with(a: Col, b: Col, out: &mut [f64], g: impl Fn(f64, f64) -> f64) {
-    match (a.stride, b.stride) {
-        (1, 1) => out.iter_mut().zip(a.values.iter().zip(b.values)).for_each(|(o, (&x, &y))| *o = g(x, y)),
-        (0, 1) => out.iter_mut().zip(b.values).for_each(|(o, &y)| *o = g(a.values[0], y)),
-        (1, 0) => out.iter_mut().zip(a.values).for_each(|(o, &x)| *o = g(x, b.values[0])),
-        _ => out.iter_mut().for_each(|o| *o = g(a.values[0], b.values[0])),
     }
 }

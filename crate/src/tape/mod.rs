@@ -12,9 +12,9 @@ mod compile;
 mod exec;
 
 use crate::dist::MvNormal;
+use crate::model::Model;
 use crate::model::builtins::{BinaryFn, ReduceFn, UnaryFn};
 use crate::model::support::Transform;
-use crate::model::{Constant, Model, Node};
 
 /// Where an argument lives: `stride` 0 repeats `slots[offset]`, stride 1 walks from it.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -218,12 +218,6 @@ impl Tape {
         }
         values
     }
-}
-
-/// The values of a node that does not depend on parameters, computed by the same instructions
-/// the tape would run. Used by the checker for sizes, bounds, indices and data.
-pub fn evaluate_constant(node: &Node, constants: &[Constant], mvnormals: &[MvNormal]) -> Vec<f64> {
-    compile::evaluate_constant(node, constants, mvnormals)
 }
 
 #[cfg(test)]
