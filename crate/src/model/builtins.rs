@@ -136,6 +136,12 @@ pub enum Builtin {
     Dot,
     /// `matvec(M, v)`: the matrix–vector product, kept apart from element-wise `*`.
     MatVec,
+    /// `cumsum(x)`: running sums.
+    CumSum,
+    /// `diff(x)`, `diff(x, k)`: differences of elements k apart.
+    Diff,
+    /// `length(x)`: the number of elements of a list, or of rows of a matrix.
+    Length,
 }
 
 /// Every callable name except the distributions, with a one-line description for help texts.
@@ -155,9 +161,14 @@ pub const FUNCTIONS: &[(&str, Builtin, &str)] = &[
     ("min", Builtin::MinMax(ReduceFn::Min, BinaryFn::Min), "smallest element, or element-wise minimum of two"),
     ("max", Builtin::MinMax(ReduceFn::Max, BinaryFn::Max), "largest element, or element-wise maximum of two"),
     ("sum", Builtin::Reduce(ReduceFn::Sum), "sum of the elements"),
+    ("prod", Builtin::Reduce(ReduceFn::Prod), "product of the elements"),
     ("mean", Builtin::Reduce(ReduceFn::Mean), "mean of the elements"),
+    ("logsumexp", Builtin::Reduce(ReduceFn::LogSumExp), "log Σ exp(xᵢ), without overflow or underflow"),
     ("dot", Builtin::Dot, "dot(a, b) = Σ aᵢ·bᵢ"),
     ("matvec", Builtin::MatVec, "matvec(M, v): matrix–vector product"),
+    ("cumsum", Builtin::CumSum, "running sums x₁, x₁ + x₂, …"),
+    ("diff", Builtin::Diff, "diff(x) = x[2:n] − x[1:n−1]; diff(x, k): elements k apart"),
+    ("length", Builtin::Length, "number of elements of a list (rows of a matrix)"),
 ];
 
 pub fn lookup(name: &str) -> Option<Builtin> {

@@ -57,6 +57,11 @@ pub fn dot(a: &[f64], b: &[f64]) -> f64 {
 #[inline]
 pub fn matvec(m: &[f64], v: &[f64], out: &mut [f64]) {
     let cols = v.len();
+    if cols == 0 {
+        // An empty slice of columns: every row sums nothing.
+        out.fill(0.0);
+        return;
+    }
     for (row, o) in m.chunks_exact(cols).zip(out.iter_mut()) {
         *o = dot(row, v);
     }

@@ -78,13 +78,22 @@ impl<'m> Evaluator<'m> {
                     at += values.len();
                 }
             }
-            NodeKind::LogDensity { family, x, params } => {
-                let n = std::iter::once(&**x).chain(params).map(|p| p.shape.len()).max().unwrap_or(1);
+            NodeKind::LogDensity { family, x, params } | NodeKind::LogDensityEach { family, x, params } => {
                 let x_values = self.value(x);
                 let values: Vec<Cow<[f64]>> = params.iter().map(|p| self.value(p)).collect();
                 let cols: Vec<Col> = values.iter().zip(params).map(|(v, p)| column(v, p)).collect();
-                out[0] = compute::log_density_sum(*family, n, column(&x_values, x), &cols);
+                if let NodeKind::LogDensity { .. } = node.kind {
+                    let n = super::elements(std::iter::once(&**x).chain(params).map(|p| p.shape));
+                    out[0] = compute::log_density_sum(*family, n, column(&x_values, x), &cols);
+                } else {
+                    compute::log_density_each(*family, column(&x_values, x), &cols, &mut out);
+                }
             }
+            NodeKind::Fold(f, items) => {
+                let values: Vec<Cow<[f64]>> = items.iter().map(|item| self.value(item)).collect();
+                compute::fold(*f, values.iter().map(|v| &v[..]), &mut out);
+            }
+            NodeKind::CumSum(x) => compute::cumsum(&self.value(x), &mut out),
             NodeKind::MvNormal { index, x, mean } => {
                 let (x_values, mean_values) = (self.value(x), self.value(mean));
                 let dist = &self.mvnormals[*index];

@@ -1,14 +1,18 @@
 //! Gives a parsed model its meaning: names resolved, shapes and supports checked, the density
-//! rewritten as a sum of log terms. The result, a [`Model`], is what [`crate::tape`] compiles.
+//! rewritten as a sum of log terms, improper posteriors refused. The result, a [`Model`], is what
+//! [`crate::tape`] compiles.
 
 pub mod builtins;
 mod checker;
 pub mod compute;
 pub(crate) mod eval;
+pub mod links;
 pub mod support;
+#[cfg(test)]
+mod tests;
 
 use crate::dist::{Family, MvNormal};
-use crate::lang::Diagnostic;
+use crate::lang::{Diagnostic, Diagnostics};
 use builtins::{BinaryFn, ReduceFn, UnaryFn};
 use serde::Serialize;
 use support::Transform;
@@ -48,7 +52,7 @@ impl Shape {
         }
     }
 
-    /// Never true: every shape holds at least one element (empty lists are refused).
+    /// True for an empty range or slice, such as `y[n+1:n]`.
     pub fn is_empty(self) -> bool {
         self.len() == 0
     }
@@ -101,11 +105,13 @@ pub struct Constant {
     pub values: Vec<f64>,
 }
 
-/// A quantity computed from the parameters for every draw.
+/// A quantity computed from the parameters: a local intermediate, or (`reported`) a derived
+/// quantity recorded and summarised for every draw.
 #[derive(Clone, Debug)]
 pub struct Derived {
     pub name: String,
     pub node: Node,
+    pub reported: bool,
 }
 
 /// A checked expression: every node knows its shape and whether it depends on parameters.
@@ -115,6 +121,9 @@ pub struct Node {
     pub shape: Shape,
     /// True when the value is known before sampling (no parameter below this node).
     pub constant: bool,
+    /// Inside the body of a `for`: the node holds one value for each term (a list as long as the
+    /// list the index runs over), not one value for all of them. Only the checker reads it.
+    pub per_index: bool,
 }
 
 #[derive(Clone, Debug)]
@@ -137,12 +146,22 @@ pub enum NodeKind {
         x: Box<Node>,
         params: Vec<Node>,
     },
+    /// log f(xᵢ; θᵢ) for each element: a list as long as the arguments' lists.
+    LogDensityEach {
+        family: Family,
+        x: Box<Node>,
+        params: Vec<Node>,
+    },
     /// log N(x; mean, Σ) with Σ the covariance of `Model::mvnormals[index]`.
     MvNormal {
         index: usize,
         x: Box<Node>,
         mean: Box<Node>,
     },
+    /// Items of one shape combined element by element, left to right: the terms of a `for`.
+    Fold(BinaryFn, Vec<Node>),
+    /// Running sums of a list.
+    CumSum(Box<Node>),
 }
 
 impl Node {
@@ -150,10 +169,12 @@ impl Node {
     pub fn children(&self) -> Vec<&Node> {
         match &self.kind {
             NodeKind::Constant(_) | NodeKind::Parameter(_) | NodeKind::Derived(_) => Vec::new(),
-            NodeKind::Map(_, x) | NodeKind::Reduce(_, x) | NodeKind::Gather(x, _) => vec![x],
+            NodeKind::Map(_, x) | NodeKind::Reduce(_, x) | NodeKind::Gather(x, _) | NodeKind::CumSum(x) => vec![x],
             NodeKind::Zip(_, a, b) | NodeKind::Dot(a, b) | NodeKind::MatVec(a, b) => vec![a, b],
-            NodeKind::Stack(items) => items.iter().collect(),
-            NodeKind::LogDensity { x, params, .. } => std::iter::once(&**x).chain(params).collect(),
+            NodeKind::Stack(items) | NodeKind::Fold(_, items) => items.iter().collect(),
+            NodeKind::LogDensity { x, params, .. } | NodeKind::LogDensityEach { x, params, .. } => {
+                std::iter::once(&**x).chain(params).collect()
+            }
             NodeKind::MvNormal { x, mean, .. } => vec![x, mean],
         }
     }
@@ -171,17 +192,26 @@ impl Node {
     }
 }
 
+/// The number of elements a distribution's arguments describe: the length of the lists among
+/// them (which the checker made equal), or 1 when every argument is a single number.
+pub fn elements(args: impl IntoIterator<Item = Shape>) -> usize {
+    args.into_iter().find(|s| *s != Shape::Scalar).map_or(1, Shape::len)
+}
+
 /// A model ready to compile.
 #[derive(Clone, Debug)]
 pub struct Model {
     pub parameters: Vec<Parameter>,
     pub constants: Vec<Constant>,
+    /// Local intermediates and reported derived quantities, in the order they are defined.
     pub derived: Vec<Derived>,
     pub mvnormals: Vec<MvNormal>,
     /// The log of the density, a scalar node.
     pub log_density: Node,
     /// Number of unconstrained coordinates.
     pub dim: usize,
+    /// Problems that do not stop the model from being used, in the order of their positions.
+    pub warnings: Vec<Diagnostic>,
 }
 
 impl Model {
@@ -201,6 +231,7 @@ impl Model {
             derived: self
                 .derived
                 .iter()
+                .filter(|d| d.reported)
                 .map(|d| DerivedInfo { name: d.name.clone(), shape: d.node.shape.dims() })
                 .collect(),
         }
@@ -212,6 +243,7 @@ impl Model {
 pub struct ModelInfo {
     pub parameters: Vec<ParameterInfo>,
     pub data: Vec<DataInfo>,
+    /// The reported derived quantities (local intermediates are not listed).
     pub derived: Vec<DerivedInfo>,
 }
 
@@ -237,7 +269,8 @@ pub struct DerivedInfo {
     pub shape: Vec<usize>,
 }
 
-/// Parse and check a model text.
-pub fn check(source: &str) -> Result<Model, Diagnostic> {
+/// Parse and check a model text: the model, or every error found (up to
+/// [`crate::lang::diagnostic::MAX_ERRORS`]).
+pub fn check(source: &str) -> Result<Model, Diagnostics> {
     checker::check(source)
 }

@@ -2,7 +2,7 @@
 
 use super::{Arg, Op, Tables, Tape, exec};
 use crate::dist::MvNormal;
-use crate::model::{Constant, Derived, Model, Node, NodeKind, Shape};
+use crate::model::{Constant, Derived, Model, Node, NodeKind, Shape, elements};
 use std::collections::HashMap;
 
 pub(crate) fn compile(model: &Model) -> Tape {
@@ -20,11 +20,12 @@ pub(crate) fn compile(model: &Model) -> Tape {
     c.tape.density_ops = c.tape.ops.len();
     let mut outputs: Vec<(usize, usize)> =
         model.parameters.iter().zip(&c.parameter_slots).map(|(p, &slot)| (slot, p.shape.len())).collect();
-    for (i, d) in model.derived.iter().enumerate() {
+    // Local intermediates are computed only where something uses them, and never recorded.
+    for (i, d) in model.derived.iter().enumerate().filter(|(_, d)| d.reported) {
         outputs.push((c.derived_slot(i), d.node.shape.len()));
     }
     let names = model.parameters.iter().map(|p| (&p.name, p.shape));
-    let columns = names.chain(model.derived.iter().map(|d| (&d.name, d.node.shape)));
+    let columns = names.chain(model.derived.iter().filter(|d| d.reported).map(|d| (&d.name, d.node.shape)));
     Tape {
         density,
         jacobians,
@@ -173,14 +174,29 @@ impl<'m> Compiler<'m> {
                 let item_len = items[0].shape.len();
                 Op::Stack { from, to: self.tape.items.len(), item_len, dst: self.alloc(len) }
             }
-            NodeKind::LogDensity { family, x, params } => {
-                let n = std::iter::once(&**x).chain(params).map(|p| p.shape.len()).max().unwrap_or(1);
+            NodeKind::LogDensity { family, x, params } | NodeKind::LogDensityEach { family, x, params } => {
+                let n = elements(std::iter::once(&**x).chain(params).map(|p| p.shape));
                 let x = self.arg(x);
                 let mut args = [Arg { offset: 0, stride: 0 }; 3];
                 for (slot, p) in args.iter_mut().zip(params) {
                     *slot = self.arg(p);
                 }
-                Op::LogDensity { family: *family, n, x, params: args, arity: params.len(), dst: self.alloc(1) }
+                let (family, arity) = (*family, params.len());
+                if let NodeKind::LogDensity { .. } = node.kind {
+                    Op::LogDensity { family, n, x, params: args, arity, dst: self.alloc(1) }
+                } else {
+                    Op::LogDensityEach { family, n, x, params: args, arity, dst: self.alloc(n) }
+                }
+            }
+            NodeKind::Fold(f, items) => {
+                let starts: Vec<usize> = items.iter().map(|item| self.node(item)).collect();
+                let from = self.tape.items.len();
+                self.tape.items.extend(starts);
+                Op::Fold { f: *f, from, to: self.tape.items.len(), len, dst: self.alloc(len) }
+            }
+            NodeKind::CumSum(x) => {
+                let src = self.node(x);
+                Op::CumSum { src, len, dst: self.alloc(len) }
             }
             NodeKind::MvNormal { index, x, mean } => {
                 let (x, mean) = (self.node(x), self.arg(mean));
@@ -204,6 +220,9 @@ fn op_dst(op: &Op) -> usize {
         | Op::Gather { dst, .. }
         | Op::Stack { dst, .. }
         | Op::LogDensity { dst, .. }
+        | Op::LogDensityEach { dst, .. }
+        | Op::Fold { dst, .. }
+        | Op::CumSum { dst, .. }
         | Op::MvNormal { dst, .. } => dst,
     }
 }

@@ -37,14 +37,28 @@ pub(crate) fn run(tables: Tables, op: &Op, theta: &[f64], slots: &mut [f64]) {
         }
         Op::Stack { from, to, item_len, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            for (chunk, &item) in output.chunks_exact_mut(item_len).zip(&tables.items[from..to]) {
-                chunk.copy_from_slice(&input[item..item + item_len]);
+            for (k, &item) in tables.items[from..to].iter().enumerate() {
+                output[k * item_len..(k + 1) * item_len].copy_from_slice(&input[item..item + item_len]);
             }
         }
         Op::LogDensity { family, n, x, params, arity, dst } => {
             let (input, output) = slots.split_at_mut(dst);
             let cols = params.map(|p| column(input, p, n));
             output[0] = compute::log_density_sum(family, n, column(input, x, n), &cols[..arity]);
+        }
+        Op::LogDensityEach { family, n, x, params, arity, dst } => {
+            let (input, output) = slots.split_at_mut(dst);
+            let cols = params.map(|p| column(input, p, n));
+            compute::log_density_each(family, column(input, x, n), &cols[..arity], &mut output[..n]);
+        }
+        Op::Fold { f, from, to, len, dst } => {
+            let (input, output) = slots.split_at_mut(dst);
+            let items = tables.items[from..to].iter().map(|&item| &input[item..item + len]);
+            compute::fold(f, items, &mut output[..len]);
+        }
+        Op::CumSum { src, len, dst } => {
+            let (input, output) = slots.split_at_mut(dst);
+            compute::cumsum(&input[src..src + len], &mut output[..len]);
         }
         Op::MvNormal { index, x, mean, dst } => {
             let (input, output) = slots.split_at_mut(dst);

@@ -89,6 +89,28 @@ pub(crate) enum Op {
         arity: usize,
         dst: usize,
     },
+    /// As `LogDensity`, one log density per element into `dst..dst + n`.
+    LogDensityEach {
+        family: crate::dist::Family,
+        n: usize,
+        x: Arg,
+        params: [Arg; 3],
+        arity: usize,
+        dst: usize,
+    },
+    /// Items of `len` slots each, starting at `Tape::items[from..to]`, folded element by element.
+    Fold {
+        f: BinaryFn,
+        from: usize,
+        to: usize,
+        len: usize,
+        dst: usize,
+    },
+    CumSum {
+        src: usize,
+        len: usize,
+        dst: usize,
+    },
     MvNormal {
         index: usize,
         x: usize,

@@ -57,10 +57,10 @@ M = [[1, 2], [3, 4], [5, 6]]
 g = [3, 1, 1]
 b : real[2]
 s : positive
-fit = matvec(M, b)
-picked = fit[g]
-corner = M[3, 2] * b[1]
-tot = dot(b, [10, 100]) + mean(fit) + max(fit) + min(b[1], b[2])
+report fit = matvec(M, b)
+report picked = fit[g]
+report corner = M[3, 2] * b[1]
+report tot = dot(b, [10, 100]) + mean(fit) + max(fit) + min(b[1], b[2])
 density = normal(b; 0, 1) * normal(s; 1, 1) * normal(picked; 0, s)
 ";
     let t = tape(src);
