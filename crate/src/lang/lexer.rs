@@ -49,9 +49,9 @@ impl Token {
 /// (an operator, `=`, `:`, `,`, `;`), and not right before a line that starts with an operator
 /// (`+ - * / ^`), which no statement can. That is the whole of the line-continuation rule.
 ///
-/// One exception lets errors be found past a bracket left open: a line that can only begin a
-/// statement (`NAME =`, `report NAME =` or `NAME : WORD` — no expression contains `=`) ends
-/// the statement before it even inside brackets.
+/// One exception lets errors be found past a bracket left open or a dangling operator: a line
+/// that can only begin a statement (`NAME =`, `report NAME =` or `NAME : WORD` — no expression
+/// contains `=`) ends the statement before it, even inside brackets or after an operator.
 pub fn tokenize(source: &str) -> Vec<Token> {
     let mut tokens = Vec::new();
     let mut depth = 0usize;
@@ -66,10 +66,12 @@ pub fn tokenize(source: &str) -> Vec<Token> {
                     use TokenKind::*;
                     matches!(t.kind, Plus | Minus | Star | Slash | Caret | Comma | Semicolon | Colon | Equals | Newline)
                 });
-                if depth > 0 && braces == 0 && starts_statement(&source[start + 1..]) {
+                let blank = tokens.last().is_none_or(|t: &Token| t.kind == TokenKind::Newline);
+                if depth > 0 || continues {
+                    if blank || braces > 0 || !starts_statement(&source[start + 1..]) {
+                        continue;
+                    }
                     depth = 0;
-                } else if depth > 0 || continues {
-                    continue;
                 }
                 single(TokenKind::Newline)
             }
@@ -228,6 +230,9 @@ mod tests {
                 .collect::<Vec<_>>()
         );
         assert_eq!(kinds("d = f(a,\n  sigma : positive\n")[6..], [Newline, Ident, Colon, Ident, Newline, Eof]);
+        // So does one after a dangling operator; blank lines still collapse into one break.
+        assert_eq!(kinds("a = b +\nc = 3"), [Ident, Equals, Ident, Plus, Newline, Ident, Equals, Number, Eof]);
+        assert_eq!(kinds("a = b\n\n\nc = 3"), [Ident, Equals, Ident, Newline, Ident, Equals, Number, Eof]);
         // A range or a comparison on the next line is not a statement.
         assert_eq!(kinds("v = y[1\n  : n]\nw = (a\n == b)").iter().filter(|k| **k == Newline).count(), 1);
     }

@@ -390,7 +390,18 @@ impl<'s> Parser<'s> {
                     break;
                 }
                 self.nest()?;
-                self.bump();
+                let colon = self.bump();
+                if matches!(
+                    self.peek().kind,
+                    TokenKind::Comma | TokenKind::RParen | TokenKind::RBracket | TokenKind::Newline | TokenKind::Eof
+                ) {
+                    return Err(Diagnostic::new(
+                        "a range with an open end only means something in `[…]`",
+                        Self::span(colon),
+                    )
+                    .expected("both ends, `a:b`")
+                    .help("inside brackets `y[2:]` runs to the last element and `y[:k]` from the first"));
+                }
                 let hi = self.expr(RANGE + 1)?;
                 let span = lhs.span.to(hi.span);
                 lhs = Expr { kind: ExprKind::Range(Some(Box::new(lhs)), Some(Box::new(hi))), span };

@@ -124,7 +124,8 @@ impl Checker<'_> {
         terms.reverse();
         let checked = terms.iter().map(|(_, t)| self.log_factor(t)).collect();
         let factors = self.all(checked)?;
-        if let Some((n, at)) = factors.iter().find_map(|f| f.over) {
+        // A product over one element is that element: both readings are the same.
+        if let Some((n, at)) = factors.iter().find_map(|f| f.over).filter(|&(n, _)| n > 1) {
             return Err(self.ambiguous_sum(e, n, at).into());
         }
         let mut factors = factors.into_iter();

@@ -10,9 +10,10 @@
 //!    its own direction proper) is probed: it is moved, with the other such elements of its
 //!    parameter and every other parameter at the unconstrained origin, to three far points
 //!    towards each infinite end of its support — ±10², ±10⁴, ±10⁶ for `real`, and for a bounded
-//!    end x = a ± e^10, e^25, e^50 (never towards a finite bound, where a flat density is still
+//!    end x = a ± e^30, e^45, e^60 (never towards a finite bound, where a flat density is still
 //!    proper). If the density there is finite and the same at all three points, to a relative
-//!    1e-12, it is flat out to that end, and that is an error.
+//!    1e-9, it is flat out to that end (or settles to a constant, which is as improper), and
+//!    that is an error.
 //!
 //! Limits: a ridge along a combination of parameters (a + b, both flat) is not found, nor a
 //! density that keeps rising slowly towards infinity (separation in a logistic regression with
@@ -26,7 +27,7 @@ use crate::model::eval::Evaluator;
 const PROBE_BUDGET: usize = 1 << 23;
 
 /// Relative difference under which three far values of the density count as the same.
-const FLAT: f64 = 1e-12;
+const FLAT: f64 = 1e-9;
 
 impl Checker<'_> {
     pub(super) fn propriety(&mut self, log_density: &Node) {
@@ -167,9 +168,9 @@ impl Checker<'_> {
                 ("falls", [-1e2, -1e4, -1e6], ["-100", "-10000", "-1000000"]),
             ],
             Transform::Above(_) | Transform::Below(_) => {
-                let far = [10.0, 25.0, 50.0].map(|u| transform.constrain(u));
+                let far = [30.0, 45.0, 60.0].map(|u| transform.constrain(u));
                 let verb = if matches!(transform, Transform::Above(_)) { "grows" } else { "falls" };
-                vec![(verb, far, ["e^10", "e^25", "e^50"])]
+                vec![(verb, far, ["e^30", "e^45", "e^60"])]
             }
             Transform::Between(..) => vec![],
         };

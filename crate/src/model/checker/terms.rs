@@ -215,18 +215,22 @@ impl Checker<'_> {
                 (None, Some(c)) => pick(over.clone(), (k * c..(k + 1) * c).collect(), Shape::Vector(c)),
             };
             self.indices.push(Index { name: terms.index.name.clone(), value: IndexValue::Term(value) });
+            let reported = self.errors.len();
             let body = self.body(terms, mode);
             self.indices.pop();
+            let which = || match (&values, row) {
+                (Some(v), None) => format!("in the term where `{}` is {}", terms.index.name, v[k]),
+                _ => format!("in term {} of the `for`", k + 1),
+            };
             match body {
                 Ok(node) => nodes.push(node),
-                Err(Fault::Error(d)) => {
-                    let which = match (&values, row) {
-                        (Some(v), None) => format!("the term where `{}` is {}", terms.index.name, v[k]),
-                        _ => format!("term {} of the `for`", k + 1),
-                    };
-                    return Err(d.note(format!("in {which}")).into());
+                Err(Fault::Error(d)) => return Err(d.note(which()).into()),
+                Err(other) => {
+                    for d in &mut self.errors[reported..] {
+                        d.notes.push(which());
+                    }
+                    return Err(other);
                 }
-                Err(other) => return Err(other),
             }
         }
         let Some(first) = nodes.first() else {
