@@ -133,7 +133,12 @@ impl Display for Terms {
 
 /// Integers print without a fraction; anything else in Rust's shortest round-trip form.
 fn write_number(f: &mut Formatter, v: f64) -> fmt::Result {
-    if v.fract() == 0.0 && v.abs() < 1e15 { write!(f, "{}", v as i64) } else { write!(f, "{v:?}") }
+    write!(f, "{}", number(v))
+}
+
+/// A number as the language writes it, for messages too: `3`, `2.5`, `1e300`, never 300 digits.
+pub fn number(v: f64) -> String {
+    if v.fract() == 0.0 && v.abs() < 1e15 { format!("{}", v as i64) } else { format!("{v:?}") }
 }
 
 /// A fully parenthesised prefix form, `(+ 1 (* 2 3))`, for short and exact parser tests.

@@ -30,6 +30,9 @@ pub const MAX_DATA: usize = 8 << 20;
 /// text combines large values, the time and memory of checking it and the size of its compiled
 /// evaluator stay proportionate to this.
 pub const MAX_WORK: usize = 32 << 20;
+/// Largest number of terms of `for` forms checked one term at a time (those whose terms are
+/// lists); nested ones count each inner term once per outer term.
+pub use checker::MAX_TERMS;
 /// Largest number of values one draw records: the parameters' elements and the derived
 /// quantities' elements.
 pub const MAX_RECORDED: usize = 100_000;

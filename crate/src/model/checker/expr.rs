@@ -7,6 +7,7 @@
 use super::*;
 use crate::lang::ast::ExprKind;
 use crate::lang::diagnostic::did_you_mean;
+use crate::lang::print::number;
 use crate::model::builtins::{self, Builtin};
 
 impl Checker<'_> {
@@ -161,7 +162,9 @@ impl Checker<'_> {
         self.known(&node, e, "the end of a range")?;
         match self.evaluate(&node).as_slice() {
             [v] if v.fract() == 0.0 && v.abs() <= 9.0e15 => Ok(*v),
-            [v] => Err(Diagnostic::new(format!("the end of a range is {v}"), e.span).expected("a whole number").into()),
+            [v] => Err(Diagnostic::new(format!("the end of a range is {}", number(*v)), e.span)
+                .expected("a whole number")
+                .into()),
             _ => Err(Diagnostic::new(format!("the end of a range is {}", node.shape.describe()), e.span)
                 .expected("a single whole number")
                 .into()),
@@ -170,14 +173,19 @@ impl Checker<'_> {
 
     fn whole_range(&mut self, lo: f64, hi: f64, ends: Span, span: Span) -> Checked<Node> {
         if hi < lo - 1.0 {
-            return Err(Diagnostic::new(format!("the range {lo}:{hi} runs backwards"), ends)
+            return Err(Diagnostic::new(format!("the range {}:{} runs backwards", number(lo), number(hi)), ends)
                 .expected("a:b with b ≥ a (or b = a − 1 for an empty range)")
                 .into());
         }
         let len = hi - lo + 1.0;
         if len > MAX_LENGTH as f64 {
             return Err(Diagnostic::new(
-                format!("the range {lo}:{hi} has {len} elements, more than the limit of {MAX_LENGTH} for one value"),
+                format!(
+                    "the range {}:{} has {} elements, more than the limit of {MAX_LENGTH} for one value",
+                    number(lo),
+                    number(hi),
+                    number(len)
+                ),
                 ends,
             )
             .into());
@@ -312,7 +320,7 @@ impl Checker<'_> {
                 if v.fract() == 0.0 && v >= 1.0 && v <= extent as f64 {
                     Ok(v as usize - 1)
                 } else {
-                    Err(Diagnostic::new(format!("index {v} is out of range"), index.span)
+                    Err(Diagnostic::new(format!("index {} is out of range", number(v)), index.span)
                         .expected(format!("a whole number from 1 to {extent}: {described} has {extent} there"))
                         .into())
                 }

@@ -15,6 +15,8 @@ mod factor;
 mod proper;
 mod terms;
 
+pub use terms::MAX_TERMS;
+
 use super::builtins::{BinaryFn, ReduceFn, UnaryFn};
 use super::support::Transform;
 use super::*;
