@@ -268,7 +268,7 @@ fn error_cap_for_many_broken_statements() {
     }
     source.push_str(TAIL);
     let started = std::time::Instant::now();
-    let errors = check(&source).err().expect("errors");
+    let errors = check(&source).expect_err("errors");
     assert_eq!(errors.iter().count(), mixwell::lang::diagnostic::MAX_ERRORS);
     assert!(errors.more() > 0);
     assert!(errors.render("hostile.mw", &source).contains("more errors not shown"));

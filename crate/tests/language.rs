@@ -202,14 +202,21 @@ fn terms_computed_together_and_one_by_one_agree_to_the_bit() {
 fn the_readme_change_point_and_its_running_sum_form_match_the_enumeration() {
     let readme = include_str!("../../README.md");
     let section = readme.split("### Summing out a discrete parameter").nth(1).expect("the section");
-    let blocks: Vec<&str> = section.split("```text\n").skip(1).map(|b| b.split("```").next().expect("a block")).collect();
+    let blocks: Vec<&str> =
+        section.split("```text\n").skip(1).map(|b| b.split("```").next().expect("a block")).collect();
     let model = blocks[0].to_string();
     let head: String = model.lines().take_while(|l| !l.starts_with("density")).map(|l| format!("{l}\n")).collect();
     let running = format!("{head}{}", blocks[1]);
     let f = fixture();
-    assert_eq!(floats(&f["change_point"]["y"]), floats(&serde_json::from_str(
-        model.lines().find(|l| l.starts_with("failures = ")).expect("data").trim_start_matches("failures = ")
-    ).expect("a list")));
+    assert_eq!(
+        floats(&f["change_point"]["y"]),
+        floats(
+            &serde_json::from_str(
+                model.lines().find(|l| l.starts_with("failures = ")).expect("data").trim_start_matches("failures = ")
+            )
+            .expect("a list")
+        )
+    );
     for source in [model, running] {
         let tape = compile(&source);
         for point in f["change_point"]["points"].as_array().expect("points") {

@@ -4,7 +4,7 @@
 // browser on every change, and nothing the user typed is replaced without a way back.
 
 import 'uplot/dist/uPlot.min.css';
-import { createEditor, replaceText, showDiagnostic } from './editor.js';
+import { createEditor, replaceText, showDiagnostics } from './editor.js';
 import { checkModel, comparisonConfigs, defaultConfig, makeLink, readLink, startEngine } from './engine.js';
 import { markCurrentExample, showCheck, showEngineFailure, showGallery, showOutline } from './panels.js';
 import { progressView } from './progress.js';
@@ -118,7 +118,7 @@ async function main() {
     lastCheck = result;
     if (result.ok) lastInfo = result.info;
     showCheck(status, result);
-    showDiagnostic(view, result.ok ? null : result.error);
+    showDiagnostics(view, result);
     showOutline(outline, lastInfo, !result.ok);
     refresh();
   };

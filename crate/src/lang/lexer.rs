@@ -151,10 +151,10 @@ fn starts_statement(line: &str) -> bool {
     };
     let Some((at, len)) = word(line) else { return false };
     let mut rest = line[at + len..].trim_start_matches([' ', '\t']);
-    if &line[at..at + len] == "report" {
-        if let Some((next_at, next_len)) = word(rest) {
-            rest = rest[next_at + next_len..].trim_start_matches([' ', '\t']);
-        }
+    if &line[at..at + len] == "report"
+        && let Some((next_at, next_len)) = word(rest)
+    {
+        rest = rest[next_at + next_len..].trim_start_matches([' ', '\t']);
     }
     if let Some(after) = rest.strip_prefix('=') {
         return !after.starts_with('=');

@@ -53,9 +53,9 @@ impl<'m> Evaluator<'m> {
                 // A derived quantity names only earlier ones: computing those first, in order,
                 // keeps the recursion one level deep however long a chain of names is.
                 let derived: &'m [Derived] = self.derived;
-                for j in 0..=*i {
+                for (j, d) in derived.iter().enumerate().take(*i + 1) {
                     if self.cache[j].is_none() {
-                        let value = self.value(&derived[j].node).into_owned();
+                        let value = self.value(&d.node).into_owned();
                         self.cache[j] = Some(value);
                     }
                 }
