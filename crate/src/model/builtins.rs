@@ -105,7 +105,7 @@ impl ReduceFn {
             ReduceFn::Mean => xs.iter().sum::<f64>() / xs.len() as f64,
             ReduceFn::Min => xs.iter().copied().fold(f64::INFINITY, f64::min),
             ReduceFn::Max => xs.iter().copied().fold(f64::NEG_INFINITY, f64::max),
-            ReduceFn::LogSumExp => crate::dist::special::log_sum_exp(xs),
+            ReduceFn::LogSumExp => log_sum_exp(xs),
         }
     }
 
@@ -121,6 +121,12 @@ impl ReduceFn {
             ReduceFn::Mean => None,
         }
     }
+}
+
+/// log Σ exp(xᵢ) (`dist::special`), called rather than inlined into every reduction.
+#[inline(never)]
+fn log_sum_exp(xs: &[f64]) -> f64 {
+    crate::dist::special::log_sum_exp(xs)
 }
 
 /// What a function name means and how many arguments it takes.

@@ -97,7 +97,7 @@ impl<'m> Evaluator<'m> {
             NodeKind::MvNormal { index, x, mean } => {
                 let (x_values, mean_values) = (self.value(x), self.value(mean));
                 let dist = &self.mvnormals[*index];
-                out[0] = dist.log_density(Col::vector(&x_values), column(&mean_values, mean));
+                out[0] = compute::mvnormal(dist, Col::vector(&x_values), column(&mean_values, mean));
             }
         }
         Cow::Owned(out)

@@ -46,6 +46,21 @@ pub(crate) fn run(tables: Tables, op: &Op, theta: &[f64], slots: &mut [f64]) {
             let cols = params.map(|p| column(input, p, n));
             output[0] = compute::log_density_sum(family, n, column(input, x, n), &cols[..arity]);
         }
+        Op::LogDensityEach { .. } | Op::Fold { .. } | Op::CumSum { .. } => run_column_op(tables, op, slots),
+        Op::MvNormal { index, x, mean, dst } => {
+            let (input, output) = slots.split_at_mut(dst);
+            let d = tables.mvnormals[index].dim();
+            output[0] =
+                compute::mvnormal(&tables.mvnormals[index], Col::vector(&input[x..x + d]), column(input, mean, d));
+        }
+    }
+}
+
+/// The instructions of `for` forms and sequences, kept out of [`run`] so that the loop over the
+/// instructions stays as small, and as well inlined, for the models that never use them.
+#[inline(never)]
+fn run_column_op(tables: Tables, op: &Op, slots: &mut [f64]) {
+    match *op {
         Op::LogDensityEach { family, n, x, params, arity, dst } => {
             let (input, output) = slots.split_at_mut(dst);
             let cols = params.map(|p| column(input, p, n));
@@ -60,11 +75,7 @@ pub(crate) fn run(tables: Tables, op: &Op, theta: &[f64], slots: &mut [f64]) {
             let (input, output) = slots.split_at_mut(dst);
             compute::cumsum(&input[src..src + len], &mut output[..len]);
         }
-        Op::MvNormal { index, x, mean, dst } => {
-            let (input, output) = slots.split_at_mut(dst);
-            let d = tables.mvnormals[index].dim();
-            output[0] = tables.mvnormals[index].log_density(Col::vector(&input[x..x + d]), column(input, mean, d));
-        }
+        _ => unreachable!("only the column instructions come here"),
     }
 }
 
