@@ -263,6 +263,21 @@ fn every_error_of_a_file_is_reported() {
     assert_eq!(json["ok"], false);
 }
 
+/// A model that reads but has something probably not meant: a warning on standard error in the
+/// same form, exit status 0, and the warning in `check --json`.
+#[test]
+fn warnings_are_positioned_and_do_not_fail() {
+    let source = "mu : real\nextra = mu * 2\ndensity = normal(mu; 0, 1)\n";
+    let out = mixwell(&["check", "-"], source.as_bytes());
+    assert_eq!(out.status.code(), Some(0));
+    let stderr = text(&out.stderr);
+    assert!(stderr.starts_with("<stdin>:2:1: warning: `extra` is computed but neither the density"), "{stderr}");
+    let out = mixwell(&["check", "-", "--json"], source.as_bytes());
+    let json: serde_json::Value = serde_json::from_slice(&out.stdout).expect("JSON");
+    assert_eq!(json["warnings"][0]["severity"], "warning");
+    assert_eq!(json["warnings"][0]["from"], serde_json::json!({ "line": 2, "column": 1 }));
+}
+
 #[test]
 fn control_case_is_well_formed() {
     let out = mixwell(&["check", "-"], b"mu : real\ndensity = normal(mu; 0, 1) * mu");

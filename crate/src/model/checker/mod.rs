@@ -299,7 +299,15 @@ impl<'s> Checker<'s> {
                 Statement::Bind { name, value, reported } => self.bind(name, value, *reported),
             };
             if let Err(fault) = outcome {
-                self.report(fault);
+                if let Fault::Unroll = self.report(fault) {
+                    // Only a `for` asks to go term by term, and the `for` itself answers; a
+                    // request that reaches a statement is a fault of the checker, said as one.
+                    debug_assert!(false, "a request to unroll reached a statement");
+                    self.errors.push(Diagnostic::new(
+                        "this statement could not be checked (a fault of mixwell's checker)",
+                        statement.name().span,
+                    ));
+                }
                 self.broken.insert(statement.name().name.clone());
             }
         }
@@ -356,7 +364,8 @@ impl<'s> Checker<'s> {
             }
         }
         for (i, d) in self.derived.iter().enumerate() {
-            if !used[i] {
+            // Hidden intermediates (the list of a `for`) have no name and go with their `for`.
+            if !used[i] && !d.name.is_empty() {
                 self.warnings.push(
                     Diagnostic::warning(
                         format!("`{}` is computed but neither the density nor a reported quantity uses it", d.name),
