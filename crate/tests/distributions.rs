@@ -235,6 +235,17 @@ fn discrete_families_match_statrs() {
         // bernoulli_logit(α) is bernoulli(1/(1 + e^−α)); α = logit p.
         let alpha = libm::log(p / (1.0 - p));
         check_against(fam("bernoulli_logit"), &[alpha], &[0.0, 1.0], |y| d.ln_pmf(y as u64));
+        // binomial_logit(n, α) is binomial(n, 1/(1 + e^−α)).
+        for n in [7u64, 300] {
+            let b = Binomial::new(p, n).unwrap();
+            let ks: Vec<f64> = (0..=n).step_by(3).map(|k| k as f64).collect();
+            check_against(fam("binomial_logit"), &[n as f64, alpha], &ks, |k| b.ln_pmf(k as u64));
+        }
+    }
+    // poisson_log(η) is poisson(e^η).
+    for eta in [-3.0, 0.4, 2.5, 6.0] {
+        let d = Poisson::new(libm::exp(eta)).unwrap();
+        check_against(fam("poisson_log"), &[eta], &as_f64(&counts), |k| d.ln_pmf(k as u64));
     }
 }
 
@@ -406,7 +417,7 @@ fn names_round_trip_and_parameter_lists_are_consistent() {
         assert!(!family.describe().is_empty() && !family.param_domain().is_empty());
     }
     assert_eq!(Family::from_name("gaussian"), None);
-    assert_eq!(Family::ALL.len(), 19);
+    assert_eq!(Family::ALL.len(), 21);
 }
 
 #[test]
@@ -458,6 +469,8 @@ fn ranges(family: Family) -> (Range, Vec<Range>) {
         "negbinomial" => (int(0.0, 400.0), vec![real(0.1, 400.0), real(0.05, 100.0)]),
         "bernoulli" => (int(0.0, 2.0), vec![real(0.0, 1.0)]),
         "bernoulli_logit" => (int(0.0, 2.0), vec![real(-40.0, 40.0)]),
+        "binomial_logit" => (int(0.0, 12.0), vec![int(10.0, 400.0), real(-40.0, 40.0)]),
+        "poisson_log" => (int(0.0, 400.0), vec![real(-5.0, 6.5)]),
         other => panic!("no test ranges for {other}"),
     }
 }

@@ -8,13 +8,16 @@
 
 use mixwell::lang::Diagnostic;
 use mixwell::lang::parser::{MAX_NESTING, MAX_SOURCE_BYTES};
-use mixwell::model::{MAX_DATA, MAX_DIMENSION, MAX_LENGTH, MAX_RECORDED, MAX_WORK, Model, check};
+use mixwell::model::{MAX_DATA, MAX_DIMENSION, MAX_LENGTH, MAX_RECORDED, MAX_TERMS, MAX_WORK, Model, check};
 use mixwell::tape::Tape;
 
-/// The error `source` must give: its span inside the text, and rendering it must not panic.
+/// The (first) error `source` must give: its span inside the text, and rendering it must not panic.
 fn error(source: &str) -> Diagnostic {
-    let d = check(source).err().unwrap_or_else(|| panic!("expected an error from {} bytes of model", source.len()));
-    assert!(d.span.start <= d.span.end && d.span.end <= source.len(), "span {:?} of {}", d.span, source.len());
+    let all = check(source).err().unwrap_or_else(|| panic!("expected an error from {} bytes of model", source.len()));
+    for d in all.iter() {
+        assert!(d.span.start <= d.span.end && d.span.end <= source.len(), "span {:?} of {}", d.span, source.len());
+    }
+    let d = all.first().clone();
     let rendered = d.render("hostile.mw", source);
     assert!(rendered.contains(&d.message));
     // The line under the message is cut around the caret however long the line of text is
@@ -179,9 +182,9 @@ fn work_limit_counts_intermediate_results() {
 
 #[test]
 fn recorded_values_limit() {
-    let source = format!("x = {}\nb : real\nbig = x * b\ndensity = normal(b; 0, 1)\n", ones(MAX_RECORDED));
+    let source = format!("x = {}\nb : real\nreport big = x * b\ndensity = normal(b; 0, 1)\n", ones(MAX_RECORDED));
     assert_error(&source, &["more than", &MAX_RECORDED.to_string(), "`big` has"]);
-    accepted(&format!("x = {}\nb : real\nbig = x * b\ndensity = normal(b; 0, 1)\n", ones(MAX_RECORDED - 1)));
+    accepted(&format!("x = {}\nb : real\nreport big = x * b\ndensity = normal(b; 0, 1)\n", ones(MAX_RECORDED - 1)));
 }
 
 /// Suggestions for a misspelt name compare it with every name in the model; two long names used
@@ -225,4 +228,63 @@ fn many_folded_constants_take_linear_time() {
 #[test]
 fn bounds_too_far_apart() {
     assert_error("a : between(-1e308, 1e308)\ndensity = normal(a; 0, 1)\n", &["too far apart"]);
+}
+
+/// A range is a list like any other: its length is counted before it is made.
+#[test]
+fn length_limit_for_ranges() {
+    let source = format!("x = 1:{}\n{TAIL}", MAX_LENGTH + 1);
+    assert_error(&source, &["has 1048577 elements", &format!("limit of {MAX_LENGTH}")]);
+    let source = format!("x = 1:1e300\n{TAIL}");
+    assert_error(&source, &["the end of a range is 1e300"]);
+    accepted(&format!("x = 1:{MAX_LENGTH}\n{TAIL}"));
+}
+
+/// Terms checked one at a time (each a list) are capped in all, nested ones multiplying.
+#[test]
+fn term_limit_for_for_forms_checked_one_by_one() {
+    let n = MAX_TERMS + 1;
+    let source = format!("y = 1:{n}\ns = sum(y[i:i] for i in 1:{n})\n{TAIL}");
+    let started = std::time::Instant::now();
+    assert_error(&source, &["more than", &MAX_TERMS.to_string(), "terms"]);
+    // Nested, the terms multiply: here the work of naming `y` in each term reaches its limit first.
+    let nested = "y = 1:1000\ns = sum(sum(y[j:j] + i for j in 1:1000) for i in 1:1000)\n".to_string() + TAIL;
+    assert_error(&nested, &["more than", "limit"]);
+    let nested = "s = sum(sum([i, j][1:1] for j in 1:1000) for i in 1:1000)\n".to_string() + TAIL;
+    assert_error(&nested, &["more than", &MAX_TERMS.to_string(), "terms"]);
+    assert!(started.elapsed().as_secs() < 30, "took {:?}", started.elapsed());
+    // A term that is one number per index is computed all at once, with no such limit.
+    accepted(&format!(
+        "y = 1:{n}\nm : real\ndensity = normal(m; 0, 1) * prod(normal(y[i]; m, 1000000) for i in 1:{n})\n"
+    ));
+}
+
+/// Errors are capped at the limit however many statements fail, in time linear in the text.
+#[test]
+fn error_cap_for_many_broken_statements() {
+    let mut source = String::new();
+    for k in 0..20_000 {
+        source.push_str(&format!("a{k} = unknown{k} + (\nb{k} = missing{k}\n"));
+    }
+    source.push_str(TAIL);
+    let started = std::time::Instant::now();
+    let errors = check(&source).expect_err("errors");
+    assert_eq!(errors.iter().count(), mixwell::lang::diagnostic::MAX_ERRORS);
+    assert!(errors.more() > 0);
+    assert!(errors.render("hostile.mw", &source).contains("more errors not shown"));
+    assert!(started.elapsed().as_secs() < 30, "took {:?}", started.elapsed());
+}
+
+/// A long chain of intermediates, each naming the one before, compiles and evaluates without
+/// recursing once per link (it used to recurse in the compiler).
+#[test]
+fn long_chains_of_intermediates() {
+    let mut source = String::from("m : real\nd0 = m\n");
+    for k in 1..100_000 {
+        source.push_str(&format!("d{k} = d{} + 1\n", k - 1));
+    }
+    source.push_str("density = normal(m; 0, 1) * normal(d99999; 99999, 1)\n");
+    let (_, tape) = accepted(&source);
+    let lp = tape.log_density(&[0.5], &mut tape.scratch());
+    assert!((lp - (-0.25 - 2.0 * 0.918_938_533_204_672_8)).abs() < 1e-9, "{lp}");
 }

@@ -125,7 +125,7 @@ fn conjugate_posteriors_are_recovered_by_every_kernel() {
 /// A derived quantity is summarised like a parameter: σ = √σ² has E[σ] = √b Γ(a − ½)/Γ(a).
 #[test]
 fn derived_quantities_follow_their_parameters() {
-    let source = format!("{NORMAL_INVERSE_GAMMA}sigma = sqrt(variance)\n");
+    let source = format!("{NORMAL_INVERSE_GAMMA}report sigma = sqrt(variance)\n");
     let tape = compile(&source);
     let collected =
         sample(&tape, mixwell::kernel::Settings::default_for(mixwell::kernel::Kind::Slice, 2), 4, 1000, 5000, 7);

@@ -96,6 +96,26 @@ test('underlines land on the right characters after non-ASCII text', { timeout: 
   }
 });
 
+test('every error of the text is underlined, and a warning is marked apart', { timeout: 90_000 }, async () => {
+  const session = await openChecked();
+  try {
+    const { page } = session;
+    await replaceEditorText(page, 'mu : real\nsigma : positve\ndensity = normal(mu; 0, 1) * nromal(mu; 0, 1)\n');
+    await session.waitFor('an error on line 2', () => document.getElementById('check-status').dataset.line === '2');
+    const marks = await page.$$eval('.cm-lintRange-error', (els) => els.map((el) => el.textContent));
+    assert.deepEqual(marks, ['positve', 'nromal']);
+    assert.match((await statusOf(page)).text, /1 more error further on/);
+    // A model that reads, with an intermediate nothing uses: a warning, not an error.
+    await replaceEditorText(page, 'mu : real\nextra = mu * 2\ndensity = normal(mu; 0, 1)\n');
+    await session.waitFor('the model to read', () => document.getElementById('check-status').dataset.state === 'ok');
+    assert.equal(await page.$eval('.cm-lintRange-warning', (el) => el.textContent), 'extra');
+    assert.equal(await page.$$eval('.cm-lintRange-error', (els) => els.length), 0);
+    assert.match((await statusOf(page)).text, /1 warning, underlined/);
+  } finally {
+    await session.close();
+  }
+});
+
 test('the edited text survives a reload', { timeout: 90_000 }, async () => {
   const session = await openChecked();
   try {

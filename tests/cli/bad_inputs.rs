@@ -399,10 +399,16 @@ const CASES: &[(&str, &[&str], &str, Expect)] = &[
         Refused { starts: "chain 1: no starting point with a finite density", contains: "" },
     ),
     (
-        "improper flat posterior drifts",
+        "a parameter the density does not change with",
         &["run", "-", "--tune", "none"],
         "x : real\ndensity = exp(0 * x)\n",
-        Warns("an improper posterior"),
+        Refused { starts: "<stdin>:1:1: error: nothing constrains `x` as it grows", contains: "improper" },
+    ),
+    (
+        "a parameter in no factor",
+        &["run", "-"],
+        "x : real\ny : positive\ndensity = normal(x; 0, 1)\n",
+        Refused { starts: "<stdin>:2:1: error: `y` appears in no factor of the density", contains: "improper" },
     ),
     (
         "zero-variance data",
@@ -419,7 +425,7 @@ const CASES: &[(&str, &[&str], &str, Expect)] = &[
     (
         "a derived quantity that never moves",
         &["run", "-", "--tune", "none"],
-        "mu : real\nc = mu * 0\ndensity = normal(mu; 0, 1)\n",
+        "mu : real\nreport c = mu * 0\ndensity = normal(mu; 0, 1)\n",
         Warns("c: "),
     ),
     (

@@ -6,7 +6,7 @@
 import 'uplot/dist/uPlot.min.css';
 import { setupDiagnose } from './diagnose.js';
 import { download, h } from './dom.js';
-import { createEditor, replaceText, showDiagnostic } from './editor.js';
+import { createEditor, replaceText, showDiagnostics } from './editor.js';
 import { checkModel, defaultSettings, makeLink, readLink, startEngine } from './engine.js';
 import { markCurrentExample, showCheck, showEngineFailure, showGallery, showOutline } from './panels.js';
 import { progressView } from './progress.js';
@@ -106,7 +106,7 @@ async function main() {
     lastCheck = result;
     if (result.ok) lastInfo = result.info;
     showCheck(status, result);
-    showDiagnostic(view, result.ok ? null : result.error);
+    showDiagnostics(view, result);
     showOutline(outline, lastInfo, !result.ok);
     refresh();
   };

@@ -1,5 +1,5 @@
 // The model editor (CodeMirror 6): line numbers, undo, bracket matching, colouring, and the
-// engine's diagnostic underlined where it points.
+// engine's diagnostics (every error and warning of the text) underlined where they point.
 
 import { EditorState } from '@codemirror/state';
 import {
@@ -29,6 +29,14 @@ const theme = EditorView.theme({
     textUnderlineOffset: '4px',
     backgroundColor: 'var(--bad-soft)',
   },
+  // A warning: dotted in the ink's muted colour, so it reads as "look here", not "broken".
+  '.cm-lintRange-warning': {
+    backgroundImage: 'none',
+    textDecoration: 'underline dotted var(--muted)',
+    textDecorationSkipInk: 'none',
+    textUnderlineOffset: '4px',
+  },
+  '.cm-diagnostic-warning': { borderLeft: '4px solid var(--muted)' },
   // The gutter mark in the same colour, as a cross so that it does not rely on colour.
   '.cm-lint-marker-error': {
     content: 'none',
@@ -79,10 +87,10 @@ export function replaceText(view, text) {
   });
 }
 
-/** Underline the engine's diagnostic (or clear the underline when `error` is null). */
-export function showDiagnostic(view, error) {
-  const diagnostics = error ? [toEditorDiagnostic(view.state.doc, error)] : [];
-  view.dispatch(setDiagnostics(view.state, diagnostics));
+/** Underline every error and warning of a check result (or clear them when `result` is null). */
+export function showDiagnostics(view, result) {
+  const found = result ? [...(result.errors ?? []), ...(result.warnings ?? [])] : [];
+  view.dispatch(setDiagnostics(view.state, found.map((d) => toEditorDiagnostic(view.state.doc, d))));
 }
 
 function toEditorDiagnostic(doc, error) {
@@ -94,13 +102,15 @@ function toEditorDiagnostic(doc, error) {
   if (to === from && from < doc.lineAt(from).to) {
     to = from + (doc.sliceString(from, from + 2).codePointAt(0) > 0xffff ? 2 : 1);
   }
-  return { from, to, severity: 'error', source: 'mixwell', message: describe(error) };
+  const severity = error.severity === 'warning' ? 'warning' : 'error';
+  return { from, to, severity, source: 'mixwell', message: describe(error) };
 }
 
-/** The diagnostic in words: the message, then what was expected and the hint, each on a line. */
+/** The diagnostic in words: the message, then what was expected, the hint and the notes, each on a line. */
 export function describe(error) {
   const lines = [error.message];
   if (error.expected) lines.push(`Expected ${error.expected}.`);
   if (error.help) lines.push(`Hint: ${error.help}`);
+  for (const note of error.notes ?? []) lines.push(`Note: ${note}`);
   return lines.join('\n');
 }

@@ -34,8 +34,10 @@ export async function engineModule() {
 // whose message is meant for the user (see crate/src/web).
 
 /**
- * Check model text: `{ ok: true, info }` or `{ ok: false, error }`, where `error` has `message`,
- * `expected`, `help`, `from`/`to` ({ line, column }, 1-based) and `start`/`end` (UTF-16 offsets).
+ * Check model text: `{ ok: true, info, warnings }` or `{ ok: false, error, errors, more, warnings }`.
+ * Each diagnostic has `severity` ('error' or 'warning'), `message`, `expected`, `help`, `notes`,
+ * `from`/`to` ({ line, column }, 1-based) and `start`/`end` (UTF-16 offsets); `error` is the first
+ * of `errors`, and `more` counts the errors found beyond those listed.
  */
 export const checkModel = (source) => check_model(source);
 /**

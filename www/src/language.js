@@ -6,12 +6,16 @@ import { Tag, tags } from '@lezer/highlight';
 
 const SUPPORTS = new Set(['real', 'positive', 'unit', 'between', 'above', 'below']);
 
-// Functions of the language (DESIGN.md, "Expressions"); any other name written as a call,
-// `name(x; …)`, is taken to be a distribution.
+// Functions of the language (crate/src/model/builtins.rs). A call with a `;` inside,
+// `name(x; …)`, is a distribution; so is any other name that is not a function.
 const FUNCTIONS = new Set([
-  'exp', 'log', 'log1p', 'expm1', 'sqrt', 'abs', 'lgamma', 'logistic', 'logit',
-  'sum', 'mean', 'dot', 'min', 'max', 'sin', 'cos', 'matvec',
+  'exp', 'log', 'log1p', 'expm1', 'sqrt', 'abs', 'lgamma', 'logistic', 'logit', 'sin', 'cos', 'pow',
+  'sum', 'prod', 'mean', 'min', 'max', 'logsumexp', 'dot', 'matvec', 'cumsum', 'diff', 'length',
 ]);
+
+// Words with a meaning of their own, each only where nothing else could stand: `density` and
+// `report` at the start of a statement, `for` and `in` after a term of a `for` form.
+const FOR_WORDS = new Set(['for', 'in']);
 
 const NUMBER = /^(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?/;
 const NAME = /^[A-Za-z_][A-Za-z0-9_]*/;
@@ -20,10 +24,24 @@ const NAME = /^[A-Za-z_][A-Za-z0-9_]*/;
 const distributionTag = Tag.define(tags.variableName);
 const supportTag = Tag.define(tags.typeName);
 
+/** Whether the call whose `(` starts `rest` has a `;` at its own level (on this line). */
+function hasVariate(rest) {
+  let depth = 0;
+  for (const ch of rest) {
+    if ('([{'.includes(ch)) depth += 1;
+    else if (')]}'.includes(ch)) {
+      depth -= 1;
+      if (depth === 0) return false;
+    } else if (ch === ';' && depth === 1) return true;
+  }
+  return false;
+}
+
 const modelStream = StreamLanguage.define({
   name: 'mixwell-model',
-  // `afterColon`: the next name is a support (`sigma : positive`).
-  startState: () => ({ afterColon: false }),
+  // `afterColon`: the next name is a support (`sigma : positive`), which only happens at the
+  // statement level (inside brackets `:` makes a range); `depth` counts open brackets.
+  startState: () => ({ afterColon: false, depth: 0 }),
   copyState: (state) => ({ ...state }),
   token(stream, state) {
     if (stream.sol()) state.afterColon = false;
@@ -41,19 +59,32 @@ const modelStream = StreamLanguage.define({
       const word = name[0];
       const wasAfterColon = state.afterColon;
       state.afterColon = false;
+      const before = stream.string.slice(0, stream.start).trim();
+      const rest = stream.string.slice(stream.pos);
       if (wasAfterColon && SUPPORTS.has(word)) return 'support';
-      if (word === 'density' && stream.string.slice(0, stream.start).trim() === '') return 'keyword';
-      if (/^\s*\(/.test(stream.string.slice(stream.pos))) {
-        return FUNCTIONS.has(word) ? 'builtin' : 'distribution';
+      if (before === '' && (word === 'density' || (word === 'report' && /^\s*[A-Za-z_]/.test(rest)))) return 'keyword';
+      if (/^\s*\(/.test(rest)) {
+        const open = rest.indexOf('(');
+        return FUNCTIONS.has(word) && !hasVariate(rest.slice(open)) ? 'builtin' : 'distribution';
       }
+      if (FOR_WORDS.has(word) && state.depth > 0 && before !== '' && !/[([,;:=+\-*/^]$/.test(before)) return 'keyword';
+      if (word === 'pi') return 'atom';
       return 'variableName';
     }
     const ch = stream.next();
     if (ch === ':') {
-      state.afterColon = true;
+      // A declaration's colon comes outside brackets; inside, `:` makes a range.
+      state.afterColon = state.depth === 0;
       return 'operator';
     }
-    if ('()[]'.includes(ch)) return 'bracket';
+    if ('([{'.includes(ch)) {
+      state.depth += 1;
+      return 'bracket';
+    }
+    if (')]}'.includes(ch)) {
+      state.depth = Math.max(0, state.depth - 1);
+      return 'bracket';
+    }
     if ('+-*/^='.includes(ch)) return 'operator';
     if (ch === ';' || ch === ',') return 'separator';
     return null;
@@ -75,6 +106,7 @@ const modelHighlight = HighlightStyle.define([
   { tag: tags.function(tags.variableName), color: '#17579a' },
   { tag: supportTag, color: '#7b3f8c', fontStyle: 'italic' },
   { tag: tags.keyword, color: '#1b2530', fontWeight: '700' },
+  { tag: tags.atom, color: '#a34f00', fontStyle: 'italic' },
   { tag: tags.operator, color: '#8a5a00' },
   { tag: [tags.bracket, tags.separator], color: '#56616b' },
 ]);

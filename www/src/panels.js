@@ -14,17 +14,23 @@ export function showCheck(status, result) {
     const { parameters, data, derived } = result.info;
     status.dataset.state = 'ok';
     delete status.dataset.line;
+    const warnings = result.warnings?.length
+      ? ` ${plural(result.warnings.length, 'warning', 'warnings')}, underlined in the text.`
+      : '';
     status.replaceChildren(
       h('span', { className: 'mark', ariaHidden: 'true' }, '✓'),
       h('span', {}, `Reads cleanly: ${plural(parameters.length, 'parameter', 'parameters')}, `
         + `${plural(data.length, 'data item', 'data items')}, `
-        + `${plural(derived.length, 'derived quantity', 'derived quantities')}.`),
+        + `${plural(derived.length, 'reported quantity', 'reported quantities')}.${warnings}`),
     );
   } else {
     const { from } = result.error;
     status.dataset.state = 'error';
     status.dataset.line = String(from.line);
     const [message, ...more] = describe(result.error).split('\n');
+    // The first error in full; the others are underlined in the text.
+    const others = (result.errors?.length ?? 1) - 1 + (result.more ?? 0);
+    if (others > 0) more.push(`${plural(others, 'more error', 'more errors')} further on, underlined in the text.`);
     status.replaceChildren(
       h('span', { className: 'mark', ariaHidden: 'true' }, '✕'),
       h('span', {},

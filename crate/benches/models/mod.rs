@@ -71,7 +71,7 @@ pub fn logistic(n: usize, name: &'static str) -> Bench {
     }
     rows.push(']');
     let source = format!(
-        "y = {}\nX = {rows}\na : real\nb : real[{k}]\ndensity = normal(a; 0, 2.5) * normal(b; 0, 1) * bernoulli_logit(y; a + matvec(X, b))\n",
+        "y = {}\nX = {rows}\na : real\nb : real[{k}]\ndensity = normal(a; 0, 2.5) * normal(b; 0, 1) * bernoulli(y; logistic(a + matvec(X, b)))\n",
         list(&y)
     );
     let softplus = |v: f64| if v > 0.0 { v + libm::log1p(libm::exp(-v)) } else { libm::log1p(libm::exp(v)) };

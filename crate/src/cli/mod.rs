@@ -41,9 +41,11 @@ pub fn main() -> ExitCode {
     match result {
         Ok(output) => print_out(&output),
         Err(Failure(message)) => {
-            eprint!("{message}");
-            if !message.ends_with('\n') {
-                eprintln!();
+            if !message.is_empty() {
+                eprint!("{message}");
+                if !message.ends_with('\n') {
+                    eprintln!();
+                }
             }
             ExitCode::from(2)
         }
@@ -104,9 +106,17 @@ pub(crate) fn read_model(path: &str) -> Result<(String, String), Failure> {
     }
 }
 
-/// Check a model, rendering any problem against its text.
+/// Check a model, rendering every problem against its text; its warnings go to standard error.
 pub(crate) fn load(path: &str) -> Result<(String, String, crate::model::Model), Failure> {
     let (name, text) = read_model(path)?;
     let model = crate::model::check(&text).map_err(|d| Failure(d.render(&name, &text)))?;
+    warn(&name, &text, &model);
     Ok((name, text, model))
+}
+
+/// A model's warnings, rendered as its errors are, on standard error.
+pub(crate) fn warn(name: &str, text: &str, model: &crate::model::Model) {
+    for warning in &model.warnings {
+        eprint!("{}", warning.render(name, text));
+    }
 }

@@ -533,6 +533,73 @@ impl Kernel for BernoulliLogit {
     }
 }
 
+/// binomial(trials n, logodds α): log C(n, k) − k·softplus(−α) − (n − k)·softplus(α), the
+/// binomial with p = 1/(1 + e^−α) and both log p and log(1 − p) computed without forming p.
+/// For n ≥ 256 the log C(n, k) + … is Loader's (2000) saddle-point form with p and q = 1 − p
+/// each computed directly, while both are normal numbers; past that (|α| > 700 or so) it is
+/// log C(n, k) from the saddle-point form at p = ½ plus the two stable terms.
+pub(super) struct BinomialLogit {
+    p: f64,
+    q: f64,
+    log_p: f64,
+    log_q: f64,
+}
+
+impl Kernel for BinomialLogit {
+    const HOISTED: u8 = 0b010;
+    #[inline]
+    fn prepare(p: &Params) -> Option<Self> {
+        let logodds = p[1];
+        if logodds.is_nan() {
+            return None;
+        }
+        let (log_p, log_q) = (-special::log1p_exp(-logodds), -special::log1p_exp(logodds));
+        Some(BinomialLogit { p: exp(log_p), q: exp(log_q), log_p, log_q })
+    }
+    #[inline]
+    fn eval(&self, k: f64, p: &Params) -> f64 {
+        let n = p[0];
+        if !(is_count(k) && is_count(n) && k <= n) {
+            NEG_INF
+        } else if n < LARGE_COUNT {
+            let log_choose = special::ln_factorial(n) - special::ln_factorial(k) - special::ln_factorial(n - k);
+            log_choose + times_log(k, self.log_p) + times_log(n - k, self.log_q)
+        } else if self.p.min(self.q) >= f64::MIN_POSITIVE {
+            special::ln_binomial_saddle(k, n, self.p, self.q)
+        } else {
+            let log_choose = special::ln_binomial_saddle(k, n, 0.5, 0.5) + n * LN_2;
+            log_choose + times_log(k, self.log_p) + times_log(n - k, self.log_q)
+        }
+    }
+}
+
+/// poisson(lograte η): kη − e^η − log k!, the Poisson with rate e^η and no rate formed where
+/// it would underflow. For k ≥ 256 it is the saddle-point form of [`Poisson`] when e^η is a
+/// normal number; when e^η underflows the three terms no longer cancel and the direct form is exact.
+pub(super) struct PoissonLog {
+    lograte: f64,
+    rate: f64,
+}
+
+impl Kernel for PoissonLog {
+    const HOISTED: u8 = 0b001;
+    #[inline]
+    fn prepare(p: &Params) -> Option<Self> {
+        let lograte = p[0];
+        (!lograte.is_nan() && lograte < f64::INFINITY).then(|| PoissonLog { lograte, rate: exp(lograte) })
+    }
+    #[inline]
+    fn eval(&self, k: f64, _: &Params) -> f64 {
+        if !is_count(k) {
+            NEG_INF
+        } else if k < LARGE_COUNT || self.rate < f64::MIN_POSITIVE {
+            times_log(k, self.lograte) - self.rate - special::ln_factorial(k)
+        } else {
+            -special::stirling_error(k) - special::deviance_term(k, self.rate) - HALF_LN_2PI - 0.5 * log(k)
+        }
+    }
+}
+
 /// log p for y = 1, log q for y = 0, −∞ for anything else.
 #[inline]
 fn binary_choice(y: f64, log_p: f64, log_q: f64) -> f64 {

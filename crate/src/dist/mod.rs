@@ -115,6 +115,8 @@ pub enum Family {
     NegBinomial,
     Bernoulli,
     BernoulliLogit,
+    BinomialLogit,
+    PoissonLog,
 }
 
 impl Family {
@@ -138,6 +140,8 @@ impl Family {
         Family::NegBinomial,
         Family::Bernoulli,
         Family::BernoulliLogit,
+        Family::BinomialLogit,
+        Family::PoissonLog,
     ];
 
     /// The name a model writes.
@@ -162,6 +166,8 @@ impl Family {
             Family::NegBinomial => "negbinomial",
             Family::Bernoulli => "bernoulli",
             Family::BernoulliLogit => "bernoulli_logit",
+            Family::BinomialLogit => "binomial_logit",
+            Family::PoissonLog => "poisson_log",
         }
     }
 
@@ -187,6 +193,8 @@ impl Family {
             Family::NegBinomial => &["mean", "dispersion"],
             Family::Bernoulli => &["probability"],
             Family::BernoulliLogit => &["logodds"],
+            Family::BinomialLogit => &["trials", "logodds"],
+            Family::PoissonLog => &["lograte"],
         }
     }
 
@@ -197,7 +205,9 @@ impl Family {
             Family::Gamma | Family::InvGamma | Family::LogNormal | Family::Weibull => Variate::Positive,
             Family::Beta => Variate::Unit,
             Family::Uniform => Variate::BetweenParams,
-            Family::Poisson | Family::Binomial | Family::NegBinomial => Variate::Count,
+            Family::Poisson | Family::Binomial | Family::NegBinomial | Family::BinomialLogit | Family::PoissonLog => {
+                Variate::Count
+            }
             Family::Bernoulli | Family::BernoulliLogit => Variate::Binary,
         }
     }
@@ -220,6 +230,8 @@ impl Family {
             Family::NegBinomial => "mean > 0, dispersion > 0",
             Family::Bernoulli => "0 ≤ probability ≤ 1",
             Family::BernoulliLogit => "logodds real",
+            Family::BinomialLogit => "trials a non-negative integer, logodds real",
+            Family::PoissonLog => "lograte real",
         }
     }
 
@@ -245,6 +257,8 @@ impl Family {
             Family::NegBinomial => "lnΓ(k+φ) − lnΓ(k+1) − lnΓ(φ) + k log(μ/(μ+φ)) + φ log(φ/(μ+φ))",
             Family::Bernoulli => "y log p + (1−y) log(1−p)",
             Family::BernoulliLogit => "yα − log(1 + e^α)",
+            Family::BinomialLogit => "lnΓ(n+1) − lnΓ(k+1) − lnΓ(n−k+1) − k·log(1 + e^−α) − (n−k)·log(1 + e^α)",
+            Family::PoissonLog => "kη − e^η − lnΓ(k+1)",
         }
     }
 }
@@ -282,6 +296,8 @@ pub fn sum_log_density(family: Family, n: usize, x: Col, params: &[Col]) -> f64 
         Family::NegBinomial => sum_kernel::<families::NegBinomial>(n, x, &cols),
         Family::Bernoulli => sum_kernel::<families::Bernoulli>(n, x, &cols),
         Family::BernoulliLogit => sum_kernel::<families::BernoulliLogit>(n, x, &cols),
+        Family::BinomialLogit => sum_kernel::<families::BinomialLogit>(n, x, &cols),
+        Family::PoissonLog => sum_kernel::<families::PoissonLog>(n, x, &cols),
     };
     // NaN only arises from NaN or infinite inputs (∞ − ∞); no such point has positive density.
     if total.is_nan() { f64::NEG_INFINITY } else { total }

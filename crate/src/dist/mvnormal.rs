@@ -103,6 +103,9 @@ impl MvNormal {
 
     /// log N(x; μ, Σ); `x` and `mu` are columns of length `dim` (or broadcast scalars). Columns
     /// too short and NaN give −∞.
+    // Inlined into the evaluator's instruction loop: out of line it costs the 10-dimensional
+    // benchmark model 8% more instructions per evaluation (cachegrind).
+    #[inline(always)]
     pub fn log_density(&self, x: Col, mu: Col) -> f64 {
         let d = self.dim;
         if !(x.covers(d) && mu.covers(d)) {

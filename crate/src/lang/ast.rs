@@ -2,7 +2,7 @@
 
 use super::diagnostic::Span;
 
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, Default, PartialEq)]
 pub struct Program {
     pub statements: Vec<Statement>,
 }
@@ -15,8 +15,9 @@ pub struct Ident {
 
 #[derive(Clone, Debug, PartialEq)]
 pub enum Statement {
-    /// `NAME = EXPR`: data, a derived quantity, or (when NAME is `density`) the model's density.
-    Bind { name: Ident, value: Expr },
+    /// `NAME = EXPR`: data, a local intermediate, or (when NAME is `density`) the model's density;
+    /// `report NAME = EXPR` (`reported`) a derived quantity recorded for every draw.
+    Bind { name: Ident, value: Expr, reported: bool },
     /// `NAME : SUPPORT`: a parameter.
     Declare { name: Ident, support: Support },
 }
@@ -90,4 +91,22 @@ pub enum ExprKind {
         variate: Option<Box<Expr>>,
         args: Vec<Expr>,
     },
+    /// `a:b`, the whole numbers from a to b. Inside index brackets an end may be left open:
+    /// `y[2:]`, `y[:n]`, `M[:, 1]`.
+    Range(Option<Box<Expr>>, Option<Box<Expr>>),
+    /// `[body for index in over]`: the list of `body` for each element of `over`.
+    For(Box<Terms>),
+    /// `f(body for index in over)`: `f` (a sum, product, mean, …) across the terms.
+    Across {
+        func: Ident,
+        terms: Box<Terms>,
+    },
+}
+
+/// `body for index in over`: one term for each element (or row) of `over`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Terms {
+    pub body: Expr,
+    pub index: Ident,
+    pub over: Expr,
 }

@@ -1,8 +1,10 @@
-//! Errors as data: a message, the byte range it is about, and what was expected there.
+//! Errors and warnings as data: a message, the byte range it is about, what was expected there, a
+//! hint and notes.
 //!
 //! The command line renders a [`Diagnostic`] in the GNU `FILE:LINE:COL: error: message` form
 //! (GNU Coding Standards, "Formatting Error Messages") followed by the offending line and a caret;
-//! the page underlines the same range. Nothing here prints.
+//! the page underlines the same range. A model's errors travel together as [`Diagnostics`].
+//! Nothing here prints.
 
 use serde::Serialize;
 use std::fmt::Write as _;
@@ -49,20 +51,59 @@ impl Position {
 /// caret, so an error in a megabyte-long line of data prints a few lines, not the megabyte.
 const SHOWN_CHARS: usize = 160;
 
+/// Whether a diagnostic stops the model from being used.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Severity {
+    Error,
+    /// The model can be used, but something in it is probably not what was meant.
+    Warning,
+}
+
+impl Severity {
+    fn label(self) -> &'static str {
+        match self {
+            Severity::Error => "error",
+            Severity::Warning => "warning",
+        }
+    }
+}
+
 /// One problem with a model: what went wrong, where, and what would have been right.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Diagnostic {
+    pub severity: Severity,
     pub message: String,
     pub span: Span,
     /// What the reader of the model should have written here, e.g. "an expression".
     pub expected: Option<String>,
     /// A hint such as "did you mean `sigma`?".
     pub help: Option<String>,
+    /// Further lines of explanation, e.g. the two ways to write what an ambiguous form could mean.
+    pub notes: Vec<String>,
 }
 
 impl Diagnostic {
+    /// An error.
     pub fn new(message: impl Into<String>, span: Span) -> Self {
-        Diagnostic { message: message.into(), span, expected: None, help: None }
+        Diagnostic {
+            severity: Severity::Error,
+            message: message.into(),
+            span,
+            expected: None,
+            help: None,
+            notes: vec![],
+        }
+    }
+
+    /// A warning: the model is usable as written.
+    pub fn warning(message: impl Into<String>, span: Span) -> Self {
+        Diagnostic { severity: Severity::Warning, ..Diagnostic::new(message, span) }
+    }
+
+    pub fn note(mut self, text: impl Into<String>) -> Self {
+        self.notes.push(text.into());
+        self
     }
 
     pub fn expected(mut self, what: impl Into<String>) -> Self {
@@ -80,11 +121,11 @@ impl Diagnostic {
         Position::of(source, self.span.start)
     }
 
-    /// `FILE:LINE:COL: error: message`, the offending line, a caret under the span, then the
-    /// expectation and the hint, each on a line of its own.
+    /// `FILE:LINE:COL: error: message` (or `warning:`), the offending line, a caret under the
+    /// span, then the expectation, the hint and the notes, each on a line of its own.
     pub fn render(&self, file: &str, source: &str) -> String {
         let at = self.position(source);
-        let mut out = format!("{file}:{}:{}: error: {}\n", at.line, at.column, self.message);
+        let mut out = format!("{file}:{}:{}: {}: {}\n", at.line, at.column, self.severity.label(), self.message);
         let line: Vec<char> = source.lines().nth(at.line - 1).unwrap_or("").chars().collect();
         let gutter = at.line.to_string();
         let pad = " ".repeat(gutter.len());
@@ -117,7 +158,103 @@ impl Diagnostic {
         if let Some(help) = &self.help {
             let _ = writeln!(out, "{pad} = help: {help}");
         }
+        for note in &self.notes {
+            let _ = writeln!(out, "{pad} = note: {note}");
+        }
         out
+    }
+}
+
+/// A diagnostic placed in its text for a reader that is not a terminal: the `mixwell check --json`
+/// output and the page's editor. `start` and `end` are offsets in whatever unit the reader counts
+/// (bytes for JSON files, UTF-16 code units for the page); `from` and `to` are 1-based lines and
+/// character columns, as the command line prints them.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Placed {
+    pub severity: Severity,
+    pub message: String,
+    pub expected: Option<String>,
+    pub help: Option<String>,
+    pub notes: Vec<String>,
+    pub from: Position,
+    pub to: Position,
+    pub start: usize,
+    pub end: usize,
+}
+
+impl Diagnostic {
+    /// Placed in `source`, offsets counted by `offset` from a byte offset.
+    pub fn place(&self, source: &str, offset: impl Fn(usize) -> usize) -> Placed {
+        let end = self.span.end.max(self.span.start);
+        Placed {
+            severity: self.severity,
+            message: self.message.clone(),
+            expected: self.expected.clone(),
+            help: self.help.clone(),
+            notes: self.notes.clone(),
+            from: Position::of(source, self.span.start),
+            to: Position::of(source, end),
+            start: offset(self.span.start.min(source.len())),
+            end: offset(end.min(source.len())),
+        }
+    }
+}
+
+/// At most this many errors are reported for one model; the rest are counted, not shown.
+pub const MAX_ERRORS: usize = 50;
+
+/// The errors of one model, in the order of their positions, with a count of those beyond
+/// [`MAX_ERRORS`] that were left out.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Diagnostics {
+    errors: Vec<Diagnostic>,
+    more: usize,
+}
+
+impl Diagnostics {
+    /// At least one error; sorted by position, the first [`MAX_ERRORS`] kept.
+    pub fn new(mut errors: Vec<Diagnostic>) -> Self {
+        debug_assert!(!errors.is_empty());
+        // Stable: two errors at one place keep the order in which they were found.
+        errors.sort_by_key(|d| d.span.start);
+        let more = errors.len().saturating_sub(MAX_ERRORS);
+        errors.truncate(MAX_ERRORS);
+        Diagnostics { errors, more }
+    }
+
+    /// The first error in the text.
+    pub fn first(&self) -> &Diagnostic {
+        &self.errors[0]
+    }
+
+    pub fn iter(&self) -> impl Iterator<Item = &Diagnostic> {
+        self.errors.iter()
+    }
+
+    /// Errors found beyond those kept.
+    pub fn more(&self) -> usize {
+        self.more
+    }
+
+    /// Every error rendered as [`Diagnostic::render`] does, separated by blank lines, and a last
+    /// line counting those left out.
+    pub fn render(&self, file: &str, source: &str) -> String {
+        let mut out = self.errors.iter().map(|d| d.render(file, source)).collect::<Vec<_>>().join("\n");
+        if self.more > 0 {
+            let _ = writeln!(
+                out,
+                "\n{file}: {} more error{} not shown (at most {MAX_ERRORS} are listed); fix these first",
+                self.more,
+                if self.more == 1 { "" } else { "s" }
+            );
+        }
+        out
+    }
+}
+
+impl From<Diagnostic> for Diagnostics {
+    fn from(d: Diagnostic) -> Self {
+        Diagnostics::new(vec![d])
     }
 }
 

@@ -15,6 +15,10 @@ pub enum TokenKind {
     RParen,
     LBracket,
     RBracket,
+    /// `{` and `}` are not part of the language, but they nest like brackets so that a braced
+    /// block written from habit is one statement and gets one error.
+    LBrace,
+    RBrace,
     Comma,
     Semicolon,
     Colon,
@@ -44,9 +48,15 @@ impl Token {
 /// end a statement: outside brackets, and not right after something that needs a right-hand side
 /// (an operator, `=`, `:`, `,`, `;`), and not right before a line that starts with an operator
 /// (`+ - * / ^`), which no statement can. That is the whole of the line-continuation rule.
+///
+/// One exception lets errors be found past a bracket left open or a dangling operator: a line
+/// that can only begin a statement (`NAME =`, `report NAME =` or `NAME : WORD` — no expression
+/// contains `=`) ends the statement before it, even inside brackets or after an operator.
 pub fn tokenize(source: &str) -> Vec<Token> {
     let mut tokens = Vec::new();
     let mut depth = 0usize;
+    // Braces are counted apart: inside a braced block (another language's), nothing is reset.
+    let mut braces = 0usize;
     let mut chars = source.char_indices().peekable();
     while let Some((start, c)) = chars.next() {
         let single = |kind| Token { kind, start, len: c.len_utf8() };
@@ -56,8 +66,12 @@ pub fn tokenize(source: &str) -> Vec<Token> {
                     use TokenKind::*;
                     matches!(t.kind, Plus | Minus | Star | Slash | Caret | Comma | Semicolon | Colon | Equals | Newline)
                 });
+                let blank = tokens.last().is_none_or(|t: &Token| t.kind == TokenKind::Newline);
                 if depth > 0 || continues {
-                    continue;
+                    if blank || braces > 0 || !starts_statement(&source[start + 1..]) {
+                        continue;
+                    }
+                    depth = 0;
                 }
                 single(TokenKind::Newline)
             }
@@ -75,13 +89,23 @@ pub fn tokenize(source: &str) -> Vec<Token> {
             ';' => single(TokenKind::Semicolon),
             ':' => single(TokenKind::Colon),
             '=' => single(TokenKind::Equals),
-            '(' | '[' => {
+            '(' | '[' | '{' => {
                 depth += 1;
-                single(if c == '(' { TokenKind::LParen } else { TokenKind::LBracket })
+                braces += usize::from(c == '{');
+                single(match c {
+                    '(' => TokenKind::LParen,
+                    '[' => TokenKind::LBracket,
+                    _ => TokenKind::LBrace,
+                })
             }
-            ')' | ']' => {
+            ')' | ']' | '}' => {
                 depth = depth.saturating_sub(1);
-                single(if c == ')' { TokenKind::RParen } else { TokenKind::RBracket })
+                braces = braces.saturating_sub(usize::from(c == '}'));
+                single(match c {
+                    ')' => TokenKind::RParen,
+                    ']' => TokenKind::RBracket,
+                    _ => TokenKind::RBrace,
+                })
             }
             c if c.is_ascii_alphabetic() || c == '_' => {
                 let mut end = start + 1;
@@ -107,6 +131,37 @@ pub fn tokenize(source: &str) -> Vec<Token> {
     let continued: Vec<bool> =
         tokens.windows(2).map(|w| w[0].kind == TokenKind::Newline && operator(&w[1])).chain([false]).collect();
     tokens.into_iter().zip(continued).filter(|(_, skip)| !skip).map(|(t, _)| t).collect()
+}
+
+/// The support words, after which `NAME :` is a declaration.
+pub const SUPPORT_WORDS: &[&str] = &["real", "positive", "unit", "between", "above", "below"];
+
+/// Whether `line` (the text after a line break) can only be the start of a statement:
+/// `NAME =` (not `==`), `report NAME =`, or `NAME : WORD`.
+fn starts_statement(line: &str) -> bool {
+    let word = |text: &str| -> Option<(usize, usize)> {
+        let text_start = text.len() - text.trim_start_matches([' ', '\t']).len();
+        let rest = &text[text_start..];
+        let first = rest.chars().next()?;
+        if !(first.is_ascii_alphabetic() || first == '_') {
+            return None;
+        }
+        let len = rest.find(|c: char| !(c.is_ascii_alphanumeric() || c == '_')).unwrap_or(rest.len());
+        Some((text_start, len))
+    };
+    let Some((at, len)) = word(line) else { return false };
+    let mut rest = line[at + len..].trim_start_matches([' ', '\t']);
+    if &line[at..at + len] == "report"
+        && let Some((next_at, next_len)) = word(rest)
+    {
+        rest = rest[next_at + next_len..].trim_start_matches([' ', '\t']);
+    }
+    if let Some(after) = rest.strip_prefix('=') {
+        return !after.starts_with('=');
+    }
+    // `NAME : WORD`: a declaration, even of a misspelt support (a range split over lines would
+    // begin with `:` or a number, not with a name and a colon).
+    rest.strip_prefix(':').and_then(word).is_some()
 }
 
 /// Length of the number at the start of `text`: digits, an optional fraction, an optional exponent.
@@ -163,6 +218,23 @@ mod tests {
         );
         assert_eq!(kinds("d = a *\n b\n\n\nc"), [Ident, Equals, Ident, Star, Ident, Newline, Ident, Eof]);
         assert_eq!(kinds("d = a\n  # note\n  * b\nc"), [Ident, Equals, Ident, Star, Ident, Newline, Ident, Eof]);
+    }
+
+    #[test]
+    fn a_statement_line_ends_an_unclosed_bracket() {
+        assert_eq!(
+            kinds("x = (1 +\ny = 2\nz = [1,\n  2]"),
+            [Ident, Equals, LParen, Number, Plus, Newline, Ident, Equals, Number, Newline, Ident, Equals, LBracket]
+                .into_iter()
+                .chain([Number, Comma, Number, RBracket, Eof])
+                .collect::<Vec<_>>()
+        );
+        assert_eq!(kinds("d = f(a,\n  sigma : positive\n")[6..], [Newline, Ident, Colon, Ident, Newline, Eof]);
+        // So does one after a dangling operator; blank lines still collapse into one break.
+        assert_eq!(kinds("a = b +\nc = 3"), [Ident, Equals, Ident, Plus, Newline, Ident, Equals, Number, Eof]);
+        assert_eq!(kinds("a = b\n\n\nc = 3"), [Ident, Equals, Ident, Newline, Ident, Equals, Number, Eof]);
+        // A range or a comparison on the next line is not a statement.
+        assert_eq!(kinds("v = y[1\n  : n]\nw = (a\n == b)").iter().filter(|k| **k == Newline).count(), 1);
     }
 
     #[test]

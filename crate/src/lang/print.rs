@@ -16,7 +16,10 @@ impl Display for Program {
 impl Display for Statement {
     fn fmt(&self, f: &mut Formatter) -> fmt::Result {
         match self {
-            Statement::Bind { name, value } => write!(f, "{} = {value}", name.name),
+            Statement::Bind { name, value, reported } => {
+                let report = if *reported { "report " } else { "" };
+                write!(f, "{report}{} = {value}", name.name)
+            }
             Statement::Declare { name, support } => write!(f, "{} : {support}", name.name),
         }
     }
@@ -42,6 +45,7 @@ impl Display for Support {
 /// How tightly an expression holds together when printed; mirrors the parser's binding powers.
 fn precedence(e: &Expr) -> u8 {
     match &e.kind {
+        ExprKind::Range(..) => 5,
         ExprKind::Binary(BinOp::Add | BinOp::Sub, ..) => 10,
         ExprKind::Binary(BinOp::Mul | BinOp::Div, ..) => 20,
         ExprKind::Neg(_) => 30,
@@ -104,13 +108,37 @@ impl Display for Expr {
                 comma_separated(f, args)?;
                 write!(f, ")")
             }
+            ExprKind::Range(lo, hi) => {
+                // `:` does not chain, so a range at either end is parenthesised.
+                if let Some(lo) = lo {
+                    write!(f, "{}", Wrapped(lo, precedence(lo) <= 5))?;
+                }
+                write!(f, ":")?;
+                match hi {
+                    Some(hi) => write!(f, "{}", Wrapped(hi, precedence(hi) <= 5)),
+                    None => Ok(()),
+                }
+            }
+            ExprKind::For(terms) => write!(f, "[{terms}]"),
+            ExprKind::Across { func, terms } => write!(f, "{}({terms})", func.name),
         }
+    }
+}
+
+impl Display for Terms {
+    fn fmt(&self, f: &mut Formatter) -> fmt::Result {
+        write!(f, "{} for {} in {}", self.body, self.index.name, self.over)
     }
 }
 
 /// Integers print without a fraction; anything else in Rust's shortest round-trip form.
 fn write_number(f: &mut Formatter, v: f64) -> fmt::Result {
-    if v.fract() == 0.0 && v.abs() < 1e15 { write!(f, "{}", v as i64) } else { write!(f, "{v:?}") }
+    write!(f, "{}", number(v))
+}
+
+/// A number as the language writes it, for messages too: `3`, `2.5`, `1e300`, never 300 digits.
+pub fn number(v: f64) -> String {
+    if v.fract() == 0.0 && v.abs() < 1e15 { format!("{}", v as i64) } else { format!("{v:?}") }
 }
 
 /// A fully parenthesised prefix form, `(+ 1 (* 2 3))`, for short and exact parser tests.
@@ -126,5 +154,13 @@ pub fn sexpr(e: &Expr) -> String {
             Some(v) => format!("({} {}; {})", func.name, sexpr(v), join(args)),
             None => format!("({} {})", func.name, join(args)),
         },
+        ExprKind::Range(lo, hi) => {
+            let end = |e: &Option<Box<Expr>>| e.as_deref().map_or("_".to_string(), sexpr);
+            format!("(: {} {})", end(lo), end(hi))
+        }
+        ExprKind::For(t) => format!("(list {} for {} in {})", sexpr(&t.body), t.index.name, sexpr(&t.over)),
+        ExprKind::Across { func, terms: t } => {
+            format!("({} {} for {} in {})", func.name, sexpr(&t.body), t.index.name, sexpr(&t.over))
+        }
     }
 }

@@ -1,7 +1,7 @@
 //! The functions a model can call, by name, and their definitions on numbers and slices.
 //!
-//! The checker looks names up here; the evaluator in [`crate::tape`] runs the same definitions,
-//! so a constant folded at compile time and a value computed while sampling agree to the bit.
+//! The checker looks names up here; [`super::compute`] applies the definitions to slices for both
+//! the constant folder and the compiled evaluator.
 
 /// A function of one number, applied element by element.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -71,26 +71,62 @@ impl BinaryFn {
             BinaryFn::LogSubExp => log_sub_exp(a, b),
         }
     }
+
+    /// The value `x` for which `f(x, y) = y`, the result of folding no terms: 0 for a sum, 1 for
+    /// a product, −∞ for a log-sum-exp or a maximum, +∞ for a minimum (NaN where there is none).
+    pub fn identity(self) -> f64 {
+        match self {
+            BinaryFn::Add => 0.0,
+            BinaryFn::Mul => 1.0,
+            BinaryFn::Min => f64::INFINITY,
+            BinaryFn::Max | BinaryFn::LogAddExp => f64::NEG_INFINITY,
+            BinaryFn::Sub | BinaryFn::Div | BinaryFn::Pow | BinaryFn::LogSubExp => f64::NAN,
+        }
+    }
 }
 
 /// A function from a whole vector (or matrix) to one number.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum ReduceFn {
     Sum,
+    Prod,
     Mean,
     Min,
     Max,
+    /// log Σ exp(xᵢ), shifted by the largest element so that it neither overflows nor underflows.
+    LogSumExp,
 }
 
 impl ReduceFn {
     pub fn apply(self, xs: &[f64]) -> f64 {
         match self {
             ReduceFn::Sum => xs.iter().sum(),
+            ReduceFn::Prod => xs.iter().product(),
             ReduceFn::Mean => xs.iter().sum::<f64>() / xs.len() as f64,
             ReduceFn::Min => xs.iter().copied().fold(f64::INFINITY, f64::min),
             ReduceFn::Max => xs.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+            ReduceFn::LogSumExp => log_sum_exp(xs),
         }
     }
+
+    /// The element-wise operation that folds terms the way this reduces elements; `None` for
+    /// the mean, which is a sum divided by the count.
+    pub fn pairwise(self) -> Option<BinaryFn> {
+        match self {
+            ReduceFn::Sum => Some(BinaryFn::Add),
+            ReduceFn::Prod => Some(BinaryFn::Mul),
+            ReduceFn::Min => Some(BinaryFn::Min),
+            ReduceFn::Max => Some(BinaryFn::Max),
+            ReduceFn::LogSumExp => Some(BinaryFn::LogAddExp),
+            ReduceFn::Mean => None,
+        }
+    }
+}
+
+/// log Σ exp(xᵢ) (`dist::special`), called rather than inlined into every reduction.
+#[inline(never)]
+fn log_sum_exp(xs: &[f64]) -> f64 {
+    crate::dist::special::log_sum_exp(xs)
 }
 
 /// What a function name means and how many arguments it takes.
@@ -106,6 +142,12 @@ pub enum Builtin {
     Dot,
     /// `matvec(M, v)`: the matrix–vector product, kept apart from element-wise `*`.
     MatVec,
+    /// `cumsum(x)`: running sums.
+    CumSum,
+    /// `diff(x)`, `diff(x, k)`: differences of elements k apart.
+    Diff,
+    /// `length(x)`: the number of elements of a list, or of rows of a matrix.
+    Length,
 }
 
 /// Every callable name except the distributions, with a one-line description for help texts.
@@ -125,9 +167,14 @@ pub const FUNCTIONS: &[(&str, Builtin, &str)] = &[
     ("min", Builtin::MinMax(ReduceFn::Min, BinaryFn::Min), "smallest element, or element-wise minimum of two"),
     ("max", Builtin::MinMax(ReduceFn::Max, BinaryFn::Max), "largest element, or element-wise maximum of two"),
     ("sum", Builtin::Reduce(ReduceFn::Sum), "sum of the elements"),
+    ("prod", Builtin::Reduce(ReduceFn::Prod), "product of the elements"),
     ("mean", Builtin::Reduce(ReduceFn::Mean), "mean of the elements"),
+    ("logsumexp", Builtin::Reduce(ReduceFn::LogSumExp), "log Σ exp(xᵢ), without overflow or underflow"),
     ("dot", Builtin::Dot, "dot(a, b) = Σ aᵢ·bᵢ"),
     ("matvec", Builtin::MatVec, "matvec(M, v): matrix–vector product"),
+    ("cumsum", Builtin::CumSum, "running sums x₁, x₁ + x₂, …"),
+    ("diff", Builtin::Diff, "diff(x) = x[2:n] − x[1:n−1]; diff(x, k): elements k apart"),
+    ("length", Builtin::Length, "number of elements of a list (rows of a matrix)"),
 ];
 
 pub fn lookup(name: &str) -> Option<Builtin> {
@@ -167,15 +214,6 @@ pub fn log_sub_exp(a: f64, b: f64) -> f64 {
         a
     } else {
         a + libm::log(-libm::expm1(b - a))
-    }
-}
-
-/// out = M·v for a row-major `rows`×`v.len()` matrix.
-#[inline]
-pub fn matvec(m: &[f64], v: &[f64], out: &mut [f64]) {
-    let cols = v.len();
-    for (row, o) in m.chunks_exact(cols).zip(out.iter_mut()) {
-        *o = row.iter().zip(v).map(|(a, b)| a * b).sum();
     }
 }
 

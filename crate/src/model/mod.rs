@@ -1,12 +1,18 @@
 //! Gives a parsed model its meaning: names resolved, shapes and supports checked, the density
-//! rewritten as a sum of log terms. The result, a [`Model`], is what [`crate::tape`] compiles.
+//! rewritten as a sum of log terms, improper posteriors refused. The result, a [`Model`], is what
+//! [`crate::tape`] compiles.
 
 pub mod builtins;
 mod checker;
+pub mod compute;
+pub(crate) mod eval;
+pub mod links;
 pub mod support;
+#[cfg(test)]
+mod tests;
 
 use crate::dist::{Family, MvNormal};
-use crate::lang::Diagnostic;
+use crate::lang::{Diagnostic, Diagnostics};
 use builtins::{BinaryFn, ReduceFn, UnaryFn};
 use serde::Serialize;
 use support::Transform;
@@ -24,6 +30,9 @@ pub const MAX_DATA: usize = 8 << 20;
 /// text combines large values, the time and memory of checking it and the size of its compiled
 /// evaluator stay proportionate to this.
 pub const MAX_WORK: usize = 32 << 20;
+/// Largest number of terms of `for` forms checked one term at a time (those whose terms are
+/// lists); nested ones count each inner term once per outer term.
+pub use checker::MAX_TERMS;
 /// Largest number of values one draw records: the parameters' elements and the derived
 /// quantities' elements.
 pub const MAX_RECORDED: usize = 100_000;
@@ -46,7 +55,7 @@ impl Shape {
         }
     }
 
-    /// Never true: every shape holds at least one element (empty lists are refused).
+    /// True for an empty range or slice, such as `y[n+1:n]`.
     pub fn is_empty(self) -> bool {
         self.len() == 0
     }
@@ -99,11 +108,13 @@ pub struct Constant {
     pub values: Vec<f64>,
 }
 
-/// A quantity computed from the parameters for every draw.
+/// A quantity computed from the parameters: a local intermediate, or (`reported`) a derived
+/// quantity recorded and summarised for every draw.
 #[derive(Clone, Debug)]
 pub struct Derived {
     pub name: String,
     pub node: Node,
+    pub reported: bool,
 }
 
 /// A checked expression: every node knows its shape and whether it depends on parameters.
@@ -113,6 +124,9 @@ pub struct Node {
     pub shape: Shape,
     /// True when the value is known before sampling (no parameter below this node).
     pub constant: bool,
+    /// Inside the body of a `for`: the node holds one value for each term (a list as long as the
+    /// list the index runs over), not one value for all of them. Only the checker reads it.
+    pub per_index: bool,
 }
 
 #[derive(Clone, Debug)]
@@ -135,12 +149,56 @@ pub enum NodeKind {
         x: Box<Node>,
         params: Vec<Node>,
     },
+    /// log f(xᵢ; θᵢ) for each element: a list as long as the arguments' lists.
+    LogDensityEach {
+        family: Family,
+        x: Box<Node>,
+        params: Vec<Node>,
+    },
     /// log N(x; mean, Σ) with Σ the covariance of `Model::mvnormals[index]`.
     MvNormal {
         index: usize,
         x: Box<Node>,
         mean: Box<Node>,
     },
+    /// Items of one shape combined element by element, left to right: the terms of a `for`.
+    Fold(BinaryFn, Vec<Node>),
+    /// Running sums of a list.
+    CumSum(Box<Node>),
+}
+
+impl Node {
+    /// The nodes this one is computed from, in order.
+    pub fn children(&self) -> Vec<&Node> {
+        match &self.kind {
+            NodeKind::Constant(_) | NodeKind::Parameter(_) | NodeKind::Derived(_) => Vec::new(),
+            NodeKind::Map(_, x) | NodeKind::Reduce(_, x) | NodeKind::Gather(x, _) | NodeKind::CumSum(x) => vec![x],
+            NodeKind::Zip(_, a, b) | NodeKind::Dot(a, b) | NodeKind::MatVec(a, b) => vec![a, b],
+            NodeKind::Stack(items) | NodeKind::Fold(_, items) => items.iter().collect(),
+            NodeKind::LogDensity { x, params, .. } | NodeKind::LogDensityEach { x, params, .. } => {
+                std::iter::once(&**x).chain(params).collect()
+            }
+            NodeKind::MvNormal { x, mean, .. } => vec![x, mean],
+        }
+    }
+
+    /// Indices of the derived quantities and intermediates this node names directly (not those
+    /// they name in turn).
+    pub fn derived_refs(&self, out: &mut Vec<usize>) {
+        let mut stack = vec![self];
+        while let Some(node) = stack.pop() {
+            match node.kind {
+                NodeKind::Derived(i) => out.push(i),
+                _ => stack.extend(node.children()),
+            }
+        }
+    }
+}
+
+/// The number of elements a distribution's arguments describe: the length of the lists among
+/// them (which the checker made equal), or 1 when every argument is a single number.
+pub fn elements(args: impl IntoIterator<Item = Shape>) -> usize {
+    args.into_iter().find(|s| *s != Shape::Scalar).map_or(1, Shape::len)
 }
 
 /// A model ready to compile.
@@ -148,12 +206,15 @@ pub enum NodeKind {
 pub struct Model {
     pub parameters: Vec<Parameter>,
     pub constants: Vec<Constant>,
+    /// Local intermediates and reported derived quantities, in the order they are defined.
     pub derived: Vec<Derived>,
     pub mvnormals: Vec<MvNormal>,
     /// The log of the density, a scalar node.
     pub log_density: Node,
     /// Number of unconstrained coordinates.
     pub dim: usize,
+    /// Problems that do not stop the model from being used, in the order of their positions.
+    pub warnings: Vec<Diagnostic>,
 }
 
 impl Model {
@@ -173,6 +234,7 @@ impl Model {
             derived: self
                 .derived
                 .iter()
+                .filter(|d| d.reported)
                 .map(|d| DerivedInfo { name: d.name.clone(), shape: d.node.shape.dims() })
                 .collect(),
         }
@@ -184,6 +246,7 @@ impl Model {
 pub struct ModelInfo {
     pub parameters: Vec<ParameterInfo>,
     pub data: Vec<DataInfo>,
+    /// The reported derived quantities (local intermediates are not listed).
     pub derived: Vec<DerivedInfo>,
 }
 
@@ -209,7 +272,8 @@ pub struct DerivedInfo {
     pub shape: Vec<usize>,
 }
 
-/// Parse and check a model text.
-pub fn check(source: &str) -> Result<Model, Diagnostic> {
+/// Parse and check a model text: the model, or every error found (up to
+/// [`crate::lang::diagnostic::MAX_ERRORS`]).
+pub fn check(source: &str) -> Result<Model, Diagnostics> {
     checker::check(source)
 }

@@ -2,7 +2,7 @@
 
 use super::{Arg, Op, Tables, Tape, exec};
 use crate::dist::MvNormal;
-use crate::model::{Constant, Derived, Model, Node, NodeKind, Shape};
+use crate::model::{Constant, Derived, Model, Node, NodeKind, Shape, elements};
 use std::collections::HashMap;
 
 pub(crate) fn compile(model: &Model) -> Tape {
@@ -20,11 +20,12 @@ pub(crate) fn compile(model: &Model) -> Tape {
     c.tape.density_ops = c.tape.ops.len();
     let mut outputs: Vec<(usize, usize)> =
         model.parameters.iter().zip(&c.parameter_slots).map(|(p, &slot)| (slot, p.shape.len())).collect();
-    for (i, d) in model.derived.iter().enumerate() {
+    // Local intermediates are computed only where something uses them, and never recorded.
+    for (i, d) in model.derived.iter().enumerate().filter(|(_, d)| d.reported) {
         outputs.push((c.derived_slot(i), d.node.shape.len()));
     }
     let names = model.parameters.iter().map(|p| (&p.name, p.shape));
-    let columns = names.chain(model.derived.iter().map(|d| (&d.name, d.node.shape)));
+    let columns = names.chain(model.derived.iter().filter(|d| d.reported).map(|d| (&d.name, d.node.shape)));
     Tape {
         density,
         jacobians,
@@ -34,13 +35,6 @@ pub(crate) fn compile(model: &Model) -> Tape {
         mvnormals: model.mvnormals.clone(),
         ..c.tape
     }
-}
-
-pub(crate) fn evaluate_constant(node: &Node, constants: &[Constant], mvnormals: &[MvNormal]) -> Vec<f64> {
-    debug_assert!(node.constant);
-    let mut c = Compiler::new(constants, &[], mvnormals);
-    let at = c.node(node);
-    c.tape.template[at..at + node.shape.len()].to_vec()
 }
 
 struct Compiler<'m> {
@@ -108,9 +102,27 @@ impl<'m> Compiler<'m> {
         if let Some(slot) = self.derived_slots[i] {
             return slot;
         }
-        let slot = self.node(&self.derived[i].node);
-        self.derived_slots[i] = Some(slot);
-        slot
+        // Compile the uncompiled quantities this one needs first, in definition order (each
+        // names only earlier ones), so compiling never recurses along a long chain of names.
+        let mut needed = vec![i];
+        let mut seen = std::collections::HashSet::from([i]);
+        let mut k = 0;
+        while k < needed.len() {
+            let mut refs = Vec::new();
+            self.derived[needed[k]].node.derived_refs(&mut refs);
+            for j in refs {
+                if self.derived_slots[j].is_none() && seen.insert(j) {
+                    needed.push(j);
+                }
+            }
+            k += 1;
+        }
+        needed.sort_unstable();
+        for j in needed {
+            let slot = self.node(&self.derived[j].node);
+            self.derived_slots[j] = Some(slot);
+        }
+        self.derived_slots[i].expect("compiled above")
     }
 
     /// Compile `node`; returns the first slot of its value.
@@ -162,14 +174,29 @@ impl<'m> Compiler<'m> {
                 let item_len = items[0].shape.len();
                 Op::Stack { from, to: self.tape.items.len(), item_len, dst: self.alloc(len) }
             }
-            NodeKind::LogDensity { family, x, params } => {
-                let n = std::iter::once(&**x).chain(params).map(|p| p.shape.len()).max().unwrap_or(1);
+            NodeKind::LogDensity { family, x, params } | NodeKind::LogDensityEach { family, x, params } => {
+                let n = elements(std::iter::once(&**x).chain(params).map(|p| p.shape));
                 let x = self.arg(x);
                 let mut args = [Arg { offset: 0, stride: 0 }; 3];
                 for (slot, p) in args.iter_mut().zip(params) {
                     *slot = self.arg(p);
                 }
-                Op::LogDensity { family: *family, n, x, params: args, arity: params.len(), dst: self.alloc(1) }
+                let (family, arity) = (*family, params.len());
+                if let NodeKind::LogDensity { .. } = node.kind {
+                    Op::LogDensity { family, n, x, params: args, arity, dst: self.alloc(1) }
+                } else {
+                    Op::LogDensityEach { family, n, x, params: args, arity, dst: self.alloc(n) }
+                }
+            }
+            NodeKind::Fold(f, items) => {
+                let starts: Vec<usize> = items.iter().map(|item| self.node(item)).collect();
+                let from = self.tape.items.len();
+                self.tape.items.extend(starts);
+                Op::Fold { f: *f, from, to: self.tape.items.len(), len, dst: self.alloc(len) }
+            }
+            NodeKind::CumSum(x) => {
+                let src = self.node(x);
+                Op::CumSum { src, len, dst: self.alloc(len) }
             }
             NodeKind::MvNormal { index, x, mean } => {
                 let (x, mean) = (self.node(x), self.arg(mean));
@@ -193,6 +220,9 @@ fn op_dst(op: &Op) -> usize {
         | Op::Gather { dst, .. }
         | Op::Stack { dst, .. }
         | Op::LogDensity { dst, .. }
+        | Op::LogDensityEach { dst, .. }
+        | Op::Fold { dst, .. }
+        | Op::CumSum { dst, .. }
         | Op::MvNormal { dst, .. } => dst,
     }
 }

@@ -1,8 +1,9 @@
-//! Running one instruction. This is the evaluator's inner loop: no allocation, no failure.
+//! Running one instruction. This is the evaluator's inner loop: no allocation, no failure. The
+//! arithmetic itself is [`crate::model::compute`], the same code the checker folds constants with.
 
 use super::{Arg, Op, Tables};
-use crate::dist::{self, Col};
-use crate::model::builtins;
+use crate::dist::Col;
+use crate::model::compute;
 
 /// Execute `op`, reading slots before its `dst` and writing from `dst` on.
 #[inline]
@@ -18,44 +19,63 @@ pub(crate) fn run(tables: Tables, op: &Op, theta: &[f64], slots: &mut [f64]) {
         }
         Op::Map { f, src, len, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            for (o, &x) in output[..len].iter_mut().zip(&input[src..src + len]) {
-                *o = f.apply(x);
-            }
+            compute::map(f, &input[src..src + len], &mut output[..len]);
         }
         Op::Zip { f, a, b, len, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            zip(f, column(input, a, len), column(input, b, len), &mut output[..len]);
+            compute::zip(f, column(input, a, len), column(input, b, len), &mut output[..len]);
         }
-        Op::Reduce { f, src, len, dst } => slots[dst] = f.apply(&slots[src..src + len]),
-        Op::Dot { a, b, len, dst } => {
-            slots[dst] = slots[a..a + len].iter().zip(&slots[b..b + len]).map(|(x, y)| x * y).sum();
-        }
+        Op::Reduce { f, src, len, dst } => slots[dst] = compute::reduce(f, &slots[src..src + len]),
+        Op::Dot { a, b, len, dst } => slots[dst] = compute::dot(&slots[a..a + len], &slots[b..b + len]),
         Op::MatVec { m, v, rows, cols, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            builtins::matvec(&input[m..m + rows * cols], &input[v..v + cols], &mut output[..rows]);
+            compute::matvec(&input[m..m + rows * cols], &input[v..v + cols], &mut output[..rows]);
         }
         Op::Gather { src, from, to, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            for (o, &p) in output.iter_mut().zip(&tables.positions[from..to]) {
-                *o = input[src + p];
-            }
+            compute::gather(&input[src..], &tables.positions[from..to], &mut output[..to - from]);
         }
         Op::Stack { from, to, item_len, dst } => {
             let (input, output) = slots.split_at_mut(dst);
-            for (chunk, &item) in output.chunks_exact_mut(item_len).zip(&tables.items[from..to]) {
-                chunk.copy_from_slice(&input[item..item + item_len]);
+            for (k, &item) in tables.items[from..to].iter().enumerate() {
+                output[k * item_len..(k + 1) * item_len].copy_from_slice(&input[item..item + item_len]);
             }
         }
         Op::LogDensity { family, n, x, params, arity, dst } => {
             let (input, output) = slots.split_at_mut(dst);
             let cols = params.map(|p| column(input, p, n));
-            output[0] = dist::sum_log_density(family, n, column(input, x, n), &cols[..arity]);
+            output[0] = compute::log_density_sum(family, n, column(input, x, n), &cols[..arity]);
         }
+        Op::LogDensityEach { .. } | Op::Fold { .. } | Op::CumSum { .. } => run_column_op(tables, op, slots),
         Op::MvNormal { index, x, mean, dst } => {
             let (input, output) = slots.split_at_mut(dst);
             let d = tables.mvnormals[index].dim();
-            output[0] = tables.mvnormals[index].log_density(Col::vector(&input[x..x + d]), column(input, mean, d));
+            output[0] =
+                compute::mvnormal(&tables.mvnormals[index], Col::vector(&input[x..x + d]), column(input, mean, d));
         }
+    }
+}
+
+/// The instructions of `for` forms and sequences, kept out of [`run`] so that the loop over the
+/// instructions stays as small, and as well inlined, for the models that never use them.
+#[inline(never)]
+fn run_column_op(tables: Tables, op: &Op, slots: &mut [f64]) {
+    match *op {
+        Op::LogDensityEach { family, n, x, params, arity, dst } => {
+            let (input, output) = slots.split_at_mut(dst);
+            let cols = params.map(|p| column(input, p, n));
+            compute::log_density_each(family, column(input, x, n), &cols[..arity], &mut output[..n]);
+        }
+        Op::Fold { f, from, to, len, dst } => {
+            let (input, output) = slots.split_at_mut(dst);
+            let items = tables.items[from..to].iter().map(|&item| &input[item..item + len]);
+            compute::fold(f, items, &mut output[..len]);
+        }
+        Op::CumSum { src, len, dst } => {
+            let (input, output) = slots.split_at_mut(dst);
+            compute::cumsum(&input[src..src + len], &mut output[..len]);
+        }
+        _ => unreachable!("only the column instructions come here"),
     }
 }
 
@@ -65,28 +85,5 @@ fn column(slots: &[f64], arg: Arg, len: usize) -> Col<'_> {
         Col::scalar(&slots[arg.offset..arg.offset + 1])
     } else {
         Col::vector(&slots[arg.offset..arg.offset + len])
-    }
-}
-
-/// Element-wise `f`, with the common cases written as plain loops the compiler can vectorise.
-#[inline]
-fn zip(f: builtins::BinaryFn, a: Col, b: Col, out: &mut [f64]) {
-    use builtins::BinaryFn::*;
-    match f {
-        Add => zip_with(a, b, out, |x, y| x + y),
-        Sub => zip_with(a, b, out, |x, y| x - y),
-        Mul => zip_with(a, b, out, |x, y| x * y),
-        Div => zip_with(a, b, out, |x, y| x / y),
-        _ => zip_with(a, b, out, |x, y| f.apply(x, y)),
-    }
-}
-
-#[inline(always)]
-fn zip_with(a: Col, b: Col, out: &mut [f64], g: impl Fn(f64, f64) -> f64) {
-    match (a.stride, b.stride) {
-        (1, 1) => out.iter_mut().zip(a.values.iter().zip(b.values)).for_each(|(o, (&x, &y))| *o = g(x, y)),
-        (0, 1) => out.iter_mut().zip(b.values).for_each(|(o, &y)| *o = g(a.values[0], y)),
-        (1, 0) => out.iter_mut().zip(a.values).for_each(|(o, &x)| *o = g(x, b.values[0])),
-        _ => out.iter_mut().for_each(|o| *o = g(a.values[0], b.values[0])),
     }
 }

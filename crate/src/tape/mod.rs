@@ -12,9 +12,9 @@ mod compile;
 mod exec;
 
 use crate::dist::MvNormal;
+use crate::model::Model;
 use crate::model::builtins::{BinaryFn, ReduceFn, UnaryFn};
 use crate::model::support::Transform;
-use crate::model::{Constant, Model, Node};
 
 /// Where an argument lives: `stride` 0 repeats `slots[offset]`, stride 1 walks from it.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -87,6 +87,28 @@ pub(crate) enum Op {
         x: Arg,
         params: [Arg; 3],
         arity: usize,
+        dst: usize,
+    },
+    /// As `LogDensity`, one log density per element into `dst..dst + n`.
+    LogDensityEach {
+        family: crate::dist::Family,
+        n: usize,
+        x: Arg,
+        params: [Arg; 3],
+        arity: usize,
+        dst: usize,
+    },
+    /// Items of `len` slots each, starting at `Tape::items[from..to]`, folded element by element.
+    Fold {
+        f: BinaryFn,
+        from: usize,
+        to: usize,
+        len: usize,
+        dst: usize,
+    },
+    CumSum {
+        src: usize,
+        len: usize,
         dst: usize,
     },
     MvNormal {
@@ -218,12 +240,6 @@ impl Tape {
         }
         values
     }
-}
-
-/// The values of a node that does not depend on parameters, computed by the same instructions
-/// the tape would run. Used by the checker for sizes, bounds, indices and data.
-pub fn evaluate_constant(node: &Node, constants: &[Constant], mvnormals: &[MvNormal]) -> Vec<f64> {
-    compile::evaluate_constant(node, constants, mvnormals)
 }
 
 #[cfg(test)]

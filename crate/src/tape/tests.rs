@@ -57,10 +57,10 @@ M = [[1, 2], [3, 4], [5, 6]]
 g = [3, 1, 1]
 b : real[2]
 s : positive
-fit = matvec(M, b)
-picked = fit[g]
-corner = M[3, 2] * b[1]
-tot = dot(b, [10, 100]) + mean(fit) + max(fit) + min(b[1], b[2])
+report fit = matvec(M, b)
+report picked = fit[g]
+report corner = M[3, 2] * b[1]
+report tot = dot(b, [10, 100]) + mean(fit) + max(fit) + min(b[1], b[2])
 density = normal(b; 0, 1) * normal(s; 1, 1) * normal(picked; 0, s)
 ";
     let t = tape(src);
@@ -102,4 +102,64 @@ fn impossible_values_give_minus_infinity_or_nan_not_a_panic() {
     let t = tape("s : real\ndensity = normal(1; 0, s) * sqrt(s)\n");
     let lp = t.log_density(&[-1.0], &mut t.scratch());
     assert!(!lp.is_finite() || lp.is_nan());
+}
+
+mod folding {
+    //! A value folded while checking (the interpreter in `model::eval`) and the same value
+    //! computed while sampling (the compiled tape) are the same bits.
+    use super::*;
+    use proptest::prelude::*;
+
+    /// Random expressions in `x`, with every kind of arithmetic the two evaluators share.
+    fn arb_expr() -> impl Strategy<Value = String> {
+        let leaf =
+            prop_oneof![Just("x".to_string()), (-5.0..5.0f64).prop_map(|v| format!("({v:?})")), Just("pi".into())];
+        leaf.prop_recursive(4, 24, 3, |inner| {
+            let unary = prop_oneof![
+                Just("exp"),
+                Just("log"),
+                Just("log1p"),
+                Just("expm1"),
+                Just("sqrt"),
+                Just("abs"),
+                Just("lgamma"),
+                Just("logistic"),
+                Just("logit"),
+                Just("sin"),
+                Just("cos"),
+            ];
+            let binary = prop_oneof![Just("+"), Just("-"), Just("*"), Just("/"), Just("^")];
+            let pair = prop_oneof![Just("min"), Just("max"), Just("pow")];
+            prop_oneof![
+                (unary, inner.clone()).prop_map(|(f, a)| format!("{f}({a})")),
+                (inner.clone(), binary, inner.clone()).prop_map(|(a, op, b)| format!("({a} {op} {b})")),
+                (pair, inner.clone(), inner.clone()).prop_map(|(f, a, b)| format!("{f}({a}, {b})")),
+                (inner.clone(), inner.clone()).prop_map(|(a, b)| format!("sum([{a}, {b}, x]) + logsumexp([{a}, {b}])")),
+                inner.clone().prop_map(|a| format!("sum(cumsum([{a}, x, 1]) * [1, 2, 3]) - prod(diff([x, {a}, 2]))")),
+                inner.prop_map(|a| format!("mean(normal(z; {a}, 2) for z in [x, 1]) + log(poisson(2; exp(x)))")),
+            ]
+        })
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(256))]
+
+        #[test]
+        fn folded_and_sampled_values_agree_to_the_bit(e in arb_expr(), x in -3.0..3.0f64) {
+            // `r` lists x too, so it always depends on the parameter in the sampled model.
+            let folded = format!("x = {x:?}\nr = [{e}, x]\np : real\ndensity = normal(p; 0, 1)\n");
+            // A non-finite folded value is refused, and so is a `for` nested in one with the same index.
+            let Ok(m) = check(&folded) else { return Ok(()) };
+            let constant = m.constants.iter().find(|c| c.name.as_deref() == Some("r")).expect("r is data");
+            let sampled = format!("x : real\nreport r = [{e}, x]\ndensity = normal(x; 0, 1)\n");
+            let t = tape(&sampled);
+            let theta = [x];
+            let mut scratch = t.scratch();
+            let _ = t.log_density(&theta, &mut scratch);
+            let mut draw = vec![0.0; t.columns().len()];
+            t.write_draw(&theta, &mut scratch, &mut draw);
+            prop_assert_eq!(draw[0].to_bits(), theta[0].to_bits());
+            prop_assert_eq!(constant.values[0].to_bits(), draw[1].to_bits(), "{}: {} vs {}", e, constant.values[0], draw[1]);
+        }
+    }
 }

@@ -15,7 +15,8 @@ pub use run::{
     ChainEngine, RunEngine, default_settings, describe_settings, make_link, plan_run, read_link, standard_options,
 };
 
-use crate::lang::{Diagnostic, Position};
+use crate::lang::Diagnostic;
+use crate::lang::diagnostic::Placed;
 use crate::model::{self, ModelInfo};
 use serde::Serialize;
 use wasm_bindgen::prelude::*;
@@ -26,14 +27,19 @@ pub fn version() -> String {
     env!("CARGO_PKG_VERSION").to_string()
 }
 
-/// Check a model: `{ ok: true, info }` or `{ ok: false, error: { message, expected, help, from,
-/// to, start, end } }`, where `from`/`to` are `{ line, column }` and `start`/`end` are UTF-16
-/// offsets into `source`.
+/// Check a model: `{ ok: true, info, warnings }` or `{ ok: false, error, errors, more, warnings }`.
+/// Each diagnostic has `severity`, `message`, `expected`, `help`, `notes`, `from`/`to` (`{ line,
+/// column }`) and `start`/`end` (UTF-16 offsets into `source`); `error` is the first of `errors`,
+/// `more` counts the errors beyond those listed.
 #[wasm_bindgen]
 pub fn check_model(source: &str) -> Result<JsValue, JsError> {
+    let place = |d: &Diagnostic| d.place(source, |at| utf16_offset(source, at));
     let outcome = match model::check(source) {
-        Ok(model) => Checked::Ok { ok: true, info: model.info() },
-        Err(diagnostic) => Checked::Err { ok: false, error: PageDiagnostic::new(source, diagnostic) },
+        Ok(model) => Checked::Ok { ok: true, info: model.info(), warnings: model.warnings.iter().map(place).collect() },
+        Err(diagnostics) => {
+            let errors: Vec<Placed> = diagnostics.iter().map(place).collect();
+            Checked::Err { ok: false, error: errors[0].clone(), errors, more: diagnostics.more(), warnings: vec![] }
+        }
     };
     // `json_compatible` gives plain objects and `null` for a missing expectation or hint.
     Ok(outcome.serialize(&serde_wasm_bindgen::Serializer::json_compatible())?)
@@ -42,40 +48,12 @@ pub fn check_model(source: &str) -> Result<JsValue, JsError> {
 #[derive(Serialize)]
 #[serde(untagged)]
 enum Checked {
-    Ok { ok: bool, info: ModelInfo },
-    Err { ok: bool, error: PageDiagnostic },
-}
-
-/// A [`Diagnostic`] placed for the editor.
-#[derive(Serialize)]
-struct PageDiagnostic {
-    message: String,
-    expected: Option<String>,
-    help: Option<String>,
-    from: Position,
-    to: Position,
-    start: usize,
-    end: usize,
-}
-
-impl PageDiagnostic {
-    fn new(source: &str, diagnostic: Diagnostic) -> Self {
-        let Diagnostic { message, span, expected, help } = diagnostic;
-        let end = span.end.max(span.start);
-        PageDiagnostic {
-            message,
-            expected,
-            help,
-            from: Position::of(source, span.start),
-            to: Position::of(source, end),
-            start: utf16_offset(source, span.start),
-            end: utf16_offset(source, end),
-        }
-    }
+    Ok { ok: bool, info: ModelInfo, warnings: Vec<Placed> },
+    Err { ok: bool, error: Placed, errors: Vec<Placed>, more: usize, warnings: Vec<Placed> },
 }
 
 /// The UTF-16 offset of byte `offset`, clamped to the text and back to a character boundary
-/// (the same rule as [`Position::of`], so the underline and the reported column agree).
+/// (the same rule as [`crate::lang::Position::of`], so the underline and the reported column agree).
 fn utf16_offset(source: &str, offset: usize) -> usize {
     let mut offset = offset.min(source.len());
     while !source.is_char_boundary(offset) {

@@ -117,6 +117,15 @@ def exact(family, p, x):
     if family == "bernoulli_logit":
         (a,) = p
         return x * a - mp.log(1 + mp.exp(a))
+    if family == "binomial_logit":
+        # The binomial with p = 1/(1 + e^-a): log C(n, k) + k log p + (n - k) log(1 - p).
+        n, a = p
+        return (mp.loggamma(n + 1) - mp.loggamma(x + 1) - mp.loggamma(n - x + 1)
+                - x * mp.log(1 + mp.exp(-a)) - (n - x) * mp.log(1 + mp.exp(a)))
+    if family == "poisson_log":
+        # The Poisson with rate e^eta.
+        (eta,) = p
+        return x * eta - mp.exp(eta) - mp.loggamma(x + 1)
     raise ValueError(family)
 
 
@@ -164,6 +173,14 @@ def scipy_value(family, p, x):
     if family == "bernoulli_logit":
         # y*a - log(1 + e^a), with numpy's overflow-free log(e^0 + e^a).
         return x * p[0] - np.logaddexp(0.0, p[0])
+    # scipy.stats' binom and poisson take p and the rate themselves, which round to 0 or 1 at
+    # |a| = 800; the same densities written with scipy.special and numpy's overflow-free logaddexp.
+    if family == "binomial_logit":
+        n, a = p
+        log_choose = sp.gammaln(n + 1) - sp.gammaln(x + 1) - sp.gammaln(n - x + 1)
+        return log_choose - x * np.logaddexp(0.0, -a) - (n - x) * np.logaddexp(0.0, a)
+    if family == "poisson_log":
+        return x * p[0] - np.exp(p[0]) - sp.gammaln(x + 1)
     raise ValueError(family)
 
 
@@ -310,6 +327,26 @@ GENERATED = [
     ("bernoulli_logit", [45.0], 0.0),
     ("bernoulli_logit", [-745.5], 1.0),
     ("bernoulli_logit", [0.3], 0.0),
+    # The links the language recognises, binomial(k; n, logistic(a)) and poisson(k; exp(eta)),
+    # including log-odds and log-rates of magnitude 800, where p or the rate rounds to 0 or 1.
+    ("binomial_logit", [10.0, 0.3], 3.0),
+    ("binomial_logit", [10.0, -2.5], 0.0),
+    ("binomial_logit", [10.0, -800.0], 0.0),
+    ("binomial_logit", [10.0, -800.0], 2.0),
+    ("binomial_logit", [10.0, 800.0], 10.0),
+    ("binomial_logit", [10.0, 800.0], 9.0),
+    ("binomial_logit", [300.0, 0.5], 160.0),
+    ("binomial_logit", [300.0, -800.0], 1.0),
+    ("binomial_logit", [300.0, 800.0], 299.0),
+    ("binomial_logit", [2e6, -1.1], 500100.0),
+    ("poisson_log", [0.5], 2.0),
+    ("poisson_log", [-2.0], 0.0),
+    ("poisson_log", [-800.0], 0.0),
+    ("poisson_log", [-800.0], 3.0),
+    ("poisson_log", [-800.0], 300.0),
+    ("poisson_log", [700.0], 0.0),
+    ("poisson_log", [6.0], 400.0),
+    ("poisson_log", [13.8155], 1000300.0),
 ]
 
 # Multivariate normal: (mean, covariance rows, x). The first three are REFERENCES.md section 1.
