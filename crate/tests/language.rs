@@ -8,7 +8,7 @@ mod common;
 
 use common::{column, compile, sample, slices};
 use mixwell::diag;
-use mixwell::kernel::Settings;
+use mixwell::kernel::{Kind, Settings};
 use mixwell::tape::Tape;
 use serde_json::Value;
 
@@ -71,7 +71,7 @@ fn per_observation_mixture_weight_matches_quadrature() {
     let head = format!("a = {}\ns = {}\nb = {}\nt = {}\n", fixed[0], fixed[1], fixed[2], fixed[3]);
     let source = mixture_model(&y, "w : unit\n", &head) + " * beta(w; 2, 2)\n";
     let tape = compile(&source);
-    let collected = sample(&tape, Settings::default_for("slice", 1), 4, 500, 4000, 11);
+    let collected = sample(&tape, Settings::default_for(Kind::Slice, 1), 4, 500, 4000, 11);
     let s = diag::summarise(&slices(&column(&tape, &collected, "w")));
     let (mean, sd) = (posterior["mean"].as_f64().unwrap(), posterior["sd"].as_f64().unwrap());
     assert!((s.mean - mean).abs() < 4.0 * s.mcse_mean, "E[w] {} vs {mean} (MCSE {})", s.mean, s.mcse_mean);
@@ -109,7 +109,7 @@ fn change_point_posterior_matches_the_closed_form() {
     let y = floats(&f["change_point"]["y"]);
     let exact = &f["change_point"]["posterior"];
     let tape = compile(&change_point_model(&y));
-    let collected = sample(&tape, Settings::default_for("slice", 2), 4, 500, 4000, 5);
+    let collected = sample(&tape, Settings::default_for(Kind::Slice, 2), 4, 500, 4000, 5);
     for name in ["early", "late"] {
         let s = diag::summarise(&slices(&column(&tape, &collected, name)));
         let (mean, sd) =
