@@ -14,11 +14,19 @@
 
 mod cdf;
 mod families;
+mod lkj;
 mod mvnormal;
 pub mod quantile;
+mod simplex;
 pub mod special;
 
-pub use mvnormal::MvNormal;
+pub use lkj::{UNIT_TOLERANCE, lkj_cholesky_log_density, lkj_correlation_log_density, lkj_log_normaliser};
+pub use mvnormal::{MvNormal, mvnormal_cholesky_log_density, mvnormal_covariance_log_density};
+pub use simplex::{
+    SIMPLEX_TOLERANCE, categorical_log_density, categorical_scores_log_density, dirichlet_log_density,
+    multinomial_log_density, multinomial_scores_log_density, sum_categorical_log_density,
+    sum_categorical_scores_log_density,
+};
 
 use cdf::Tails;
 use core::marker::PhantomData;

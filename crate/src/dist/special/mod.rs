@@ -339,17 +339,35 @@ fn lentz_step(a: f64, b: f64, c: &mut f64, d: &mut f64) -> f64 {
 }
 
 /// log Σᵢ exp(vᵢ), shifted by the maximum so nothing overflows; −∞ for an empty slice or when
-/// every term is −∞.
+/// every term is −∞, NaN if any term is NaN. The sum of the shifted terms is 1 + (the others), taken
+/// as log1p of the others so that a dominant term does not cost the small ones their digits.
 pub fn log_sum_exp(values: &[f64]) -> f64 {
-    let max = values.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-    if max == f64::NEG_INFINITY || max.is_nan() {
-        return max;
+    let (max, rest) = log_sum_exp_parts(values);
+    if max.is_finite() { max + rest } else { max }
+}
+
+/// log Σᵢ exp(vᵢ) as (m, log Σᵢ exp(vᵢ − m)), m the largest value, the second part ≥ 0 and accurate
+/// to a few ulp (see [`log_sum_exp`]). m is −∞ for an empty slice or all −∞, +∞ if a term is +∞,
+/// NaN if a term is NaN; the second part is then 0.
+pub(crate) fn log_sum_exp_parts(values: &[f64]) -> (f64, f64) {
+    let mut largest: Option<usize> = None;
+    for (i, &v) in values.iter().enumerate() {
+        if v.is_nan() {
+            return (f64::NAN, 0.0);
+        }
+        if largest.is_none_or(|j| v > values[j]) {
+            largest = Some(i);
+        }
     }
-    if max == f64::INFINITY {
-        return f64::INFINITY;
+    let Some(at) = largest else {
+        return (f64::NEG_INFINITY, 0.0);
+    };
+    let max = values[at];
+    if !max.is_finite() {
+        return (max, 0.0);
     }
-    let sum: f64 = values.iter().map(|&v| libm::exp(v - max)).sum();
-    max + libm::log(sum)
+    let rest: f64 = values.iter().enumerate().filter(|&(i, _)| i != at).map(|(_, &v)| libm::exp(v - max)).sum();
+    (max, libm::log1p(rest))
 }
 
 #[cfg(test)]
