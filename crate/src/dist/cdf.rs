@@ -408,23 +408,27 @@ fn integrate_density<K: Kernel>(lo: f64, hi: f64, p: &Params) -> Option<f64> {
         return None;
     }
     let f = |x: f64| libm::exp(K::direct(x, p) - shift);
-    let total = adaptive(&f, lo, hi, gauss_legendre(&f, lo, hi), 0);
+    let mut budget = MAX_PANELS;
+    let total = adaptive(&f, lo, hi, gauss_legendre(&f, lo, hi), 0, &mut budget);
     (total > 0.0).then(|| log(total) + shift)
 }
 
 /// Deepest bisection of the adaptive quadrature (a narrow interval is smooth at its own scale, so
-/// this is reached only beside a singularity of the density, such as a gamma's at 0).
+/// this is reached only beside a singularity of the density, such as a gamma's at 0)…
 const MAX_DEPTH: u32 = 24;
+/// …and the most panels it may split, so that degenerate parameters (a shape of 1e-300, say)
+/// cost at most about a millisecond.
+const MAX_PANELS: u32 = 256;
 
-fn adaptive(f: &impl Fn(f64) -> f64, lo: f64, hi: f64, whole: f64, depth: u32) -> f64 {
+fn adaptive(f: &impl Fn(f64) -> f64, lo: f64, hi: f64, whole: f64, depth: u32, budget: &mut u32) -> f64 {
     let mid = 0.5 * lo + 0.5 * hi;
     let (left, right) = (gauss_legendre(f, lo, mid), gauss_legendre(f, mid, hi));
     let halves = left + right;
-    if depth >= MAX_DEPTH || (halves - whole).abs() <= 1e-15 * halves.abs() {
-        halves
-    } else {
-        adaptive(f, lo, mid, left, depth + 1) + adaptive(f, mid, hi, right, depth + 1)
+    if halves.is_nan() || depth >= MAX_DEPTH || *budget == 0 || (halves - whole).abs() <= 1e-15 * halves.abs() {
+        return halves;
     }
+    *budget -= 1;
+    adaptive(f, lo, mid, left, depth + 1, budget) + adaptive(f, mid, hi, right, depth + 1, budget)
 }
 
 /// Nodes and weights of 10-point Gauss–Legendre quadrature on [−1, 1] (only the positive half;

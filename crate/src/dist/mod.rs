@@ -434,8 +434,9 @@ fn nan_to_neg_inf(v: f64) -> f64 {
     if v.is_nan() { f64::NEG_INFINITY } else { v }
 }
 
-/// Σᵢ of a per-element function; −∞ for bad shapes.
-#[inline]
+/// Σᵢ of a per-element function; −∞ for bad shapes. Kept out of line: one small function per
+/// family and function, rather than every family's loop inlined into one dispatcher.
+#[inline(never)]
 fn sum_of<E: Elementwise>(n: usize, x: Col, y: Col, cols: Option<[Col; 3]>) -> f64 {
     if n == 0 {
         return 0.0;
@@ -448,8 +449,8 @@ fn sum_of<E: Elementwise>(n: usize, x: Col, y: Col, cols: Option<[Col; 3]>) -> f
     nan_to_neg_inf(total)
 }
 
-/// A per-element function into `out`; all −∞ for bad shapes.
-#[inline]
+/// A per-element function into `out`; all −∞ for bad shapes (out of line, as [`sum_of`]).
+#[inline(never)]
 fn each_of<E: Elementwise>(x: Col, y: Col, cols: Option<[Col; 3]>, out: &mut [f64]) {
     let Some(cols) = cols else {
         out.fill(f64::NEG_INFINITY);

@@ -409,15 +409,11 @@ def discrete_sides(family, p, k):
         lower = sum_pmf(family, p, k, -1)
         if lower is None:
             return via_integrals(family, p, k)
-        return lower, None_to_complement(lower)
+        return lower, 1 - lower
     upper = sum_pmf(family, p, k + 1, +1)
     if upper is None:
         return via_integrals(family, p, k)
-    return None_to_complement(upper), upper
-
-
-def None_to_complement(v):
-    return 1 - v
+    return 1 - upper, upper
 
 
 def sum_pmf(family, p, start, step, limit=20000):
