@@ -20,9 +20,7 @@
 //! the probabilities in it — so it is never 0 or negative for a non-empty interval.
 
 use super::families::{self, Kernel, Params, is_count};
-use super::special::{
-    self, IncompleteBeta, IncompleteGamma, LN_2, LN_PI, Tail, ln_1m_exp, ln_normal_cdf, log1p_exp,
-};
+use super::special::{self, IncompleteBeta, IncompleteGamma, LN_2, LN_PI, Tail, ln_1m_exp, ln_normal_cdf, log1p_exp};
 use libm::{log, log1p};
 use std::sync::OnceLock;
 
@@ -92,11 +90,7 @@ tails_from_kernel!(families::LogNormal, false, |self, x, p| {
 // cauchy(location, scale): F(z) = atan2(1, −z)/π, S(z) = atan2(1, z)/π, each exact on its side.
 tails_from_kernel!(families::Cauchy, false, |self, x, p| {
     let z = (x - p[0]) / p[1];
-    if z < 0.0 {
-        Tail::lower(log(libm::atan2(1.0, -z)) - LN_PI)
-    } else {
-        Tail::upper(log(libm::atan2(1.0, z)) - LN_PI)
-    }
+    if z < 0.0 { Tail::lower(log(libm::atan2(1.0, -z)) - LN_PI) } else { Tail::upper(log(libm::atan2(1.0, z)) - LN_PI) }
 });
 
 // laplace(location, scale): ½e^{z} below the location, ½e^{−z} above.
@@ -354,8 +348,11 @@ const MAX_SUMMED: f64 = 1024.0;
 /// invalid point.
 pub(super) fn ln_interval<K: Kernel, T: Tails>(tails: &T, lo: f64, hi: f64, p: &Params) -> f64 {
     let (lo, hi) = if T::DISCRETE { (libm::floor(lo), libm::floor(hi)) } else { (lo, hi) };
-    if !(lo < hi) {
-        return if lo.is_nan() || hi.is_nan() { f64::NAN } else { NEG_INF };
+    if lo.is_nan() || hi.is_nan() {
+        return f64::NAN;
+    }
+    if lo >= hi {
+        return NEG_INF;
     }
     let (a, b) = (tails.tail(lo, p), tails.tail(hi, p));
     if a.ln.is_nan() || b.ln.is_nan() {

@@ -218,12 +218,10 @@ impl Kernel for Gamma {
     }
     #[inline]
     fn eval(&self, x: f64, _: &Params) -> f64 {
-        if !(x > 0.0) {
-            NEG_INF
-        } else if let Some(front) = &self.large {
-            self.norm - log(x) + front.ln_front(self.rate * x)
-        } else {
-            self.norm + self.shape_minus_1 * log(x) - self.rate * x
+        match &self.large {
+            _ if x.is_nan() || x <= 0.0 => NEG_INF,
+            Some(front) => self.norm - log(x) + front.ln_front(self.rate * x),
+            None => self.norm + self.shape_minus_1 * log(x) - self.rate * x,
         }
     }
 }
@@ -254,12 +252,10 @@ impl Kernel for InvGamma {
     }
     #[inline]
     fn eval(&self, x: f64, _: &Params) -> f64 {
-        if !(x > 0.0) {
-            NEG_INF
-        } else if let Some(front) = &self.large {
-            self.norm - log(x) + front.ln_front(self.scale / x)
-        } else {
-            self.norm - self.shape_plus_1 * log(x) - self.scale / x
+        match &self.large {
+            _ if x.is_nan() || x <= 0.0 => NEG_INF,
+            Some(front) => self.norm - log(x) + front.ln_front(self.scale / x),
+            None => self.norm - self.shape_plus_1 * log(x) - self.scale / x,
         }
     }
 }

@@ -89,11 +89,13 @@ pub fn lkj_correlation_log_density(r: &[f64], dim: usize, eta: f64, scratch: &mu
         return f64::NEG_INFINITY;
     }
     for i in 0..dim {
-        if !((r[i * dim + i] - 1.0).abs() <= UNIT_TOLERANCE) {
+        let diagonal = r[i * dim + i];
+        if diagonal.is_nan() || (diagonal - 1.0).abs() > UNIT_TOLERANCE {
             return f64::NEG_INFINITY;
         }
         for j in 0..i {
-            if !((r[i * dim + j] - r[j * dim + i]).abs() <= 1e-12) {
+            let asymmetry = (r[i * dim + j] - r[j * dim + i]).abs();
+            if asymmetry.is_nan() || asymmetry > 1e-12 {
                 return f64::NEG_INFINITY;
             }
         }

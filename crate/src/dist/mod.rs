@@ -1,16 +1,47 @@
-//! Log-densities of the distributions a model can name, vectorised over data columns.
+//! Densities and distribution functions of the distributions a model can name, vectorised over
+//! data columns.
 //!
-//! INTERFACE (kept stable for the evaluator in `tape`):
+//! INTERFACE (for the evaluator in `tape` and the checker in `model`; all allocation-free):
+//!
+//! Univariate families.
 //! - [`Family`]: one variant per univariate distribution, with its model-language name, its
-//!   parameter names in order, and the support of its variate.
+//!   parameter names in order, the support of its variate, and its log-density as a formula.
 //! - [`Col`]: one argument column, a broadcast scalar (stride 0) or a slice (stride 1).
-//! - [`sum_log_density`]: Σᵢ log f(xᵢ; θᵢ) over `n` elements, with per-family fast paths when the
-//!   parameters are broadcast scalars (e.g. log σ computed once, not n times).
-//! - [`MvNormal`]: a multivariate normal whose covariance is data, factorised once.
+//! - Sums over n elements, per-family fast paths when the parameters are broadcast scalars:
+//!   [`sum_log_density`] Σ log f(xᵢ), [`sum_log_cdf`] Σ log P(X ≤ xᵢ) (left-censored),
+//!   [`sum_log_ccdf`] Σ log P(X > xᵢ) (right-censored), [`sum_log_interval`]
+//!   Σ log P(lᵢ < X ≤ uᵢ) (interval-censored).
+//! - Per-element writers into a caller's slice (n = `out.len()`): [`log_density_each`] (the
+//!   per-observation terms of a mixture), [`log_cdf_each`], [`log_ccdf_each`],
+//!   [`log_interval_each`] (per-element truncation and censoring).
+//! - Scalars: [`log_density`], [`log_cdf`], [`log_ccdf`], [`log_interval`].
 //!
-//! All transcendental functions come from `libm` (bit-identical natively and in wasm). Parameters
-//! outside their domain, variates outside the support and NaN anywhere give −∞, never a panic.
-//! This module knows nothing of the model language beyond the names; it does no I/O.
+//! Discrete families are evaluated at ⌊x⌋: P(X ≤ 2.7) = P(X ≤ 2), P(X > 2.7) = P(X > 2), and an
+//! interval is P(⌊l⌋ < X ≤ ⌊u⌋). Truncation to lo ≤ X ≤ hi of a count is therefore
+//! `log_interval(lo − 1, hi)`; of a continuous variate `log_interval(lo, hi)`. Infinite ends are
+//! allowed (P(X ≤ ∞) = 1).
+//!
+//! Multivariate ([`Multivariate`] names them and gives their formulas): [`dirichlet_log_density`],
+//! [`multinomial_log_density`], [`multinomial_scores_log_density`], [`categorical_log_density`],
+//! [`sum_categorical_log_density`], [`categorical_scores_log_density`],
+//! [`sum_categorical_scores_log_density`], [`lkj_cholesky_log_density`],
+//! [`lkj_correlation_log_density`], [`lkj_log_normaliser`], [`mvnormal_cholesky_log_density`],
+//! [`mvnormal_covariance_log_density`] (a parameter covariance, factorised into caller scratch),
+//! and [`MvNormal`] (a covariance that is data, factorised once; [`MvNormal::log_density_rows`]).
+//!
+//! Special functions live in [`special`]: erf, erfc, erfcx, Φ and log Φ, the regularised
+//! incomplete gamma functions P, Q and their logs, the regularised incomplete beta function, its
+//! complement and their logs, log-sum-exp and friends.
+//!
+//! Conventions. Every log-density and log-probability here is −∞ for parameters outside their
+//! domain, variates outside the support, NaN anywhere, lengths that do not fit and empty
+//! intervals — never NaN, never a panic. The special functions instead return NaN for arguments
+//! outside their domain (they are mathematical functions, not likelihood terms). Accuracy: the
+//! distribution functions to 1e-12 relative in their logarithm, far tails included
+//! (crate/tests/distribution_functions.rs against 50-digit mpmath values).
+//!
+//! All transcendental functions come from `libm` (bit-identical natively and in wasm). This module
+//! knows nothing of the model language beyond the names; it does no I/O.
 
 mod cdf;
 mod families;
@@ -256,6 +287,87 @@ impl Family {
             Family::NegBinomial => "lnΓ(k+φ) − lnΓ(k+1) − lnΓ(φ) + k log(μ/(μ+φ)) + φ log(φ/(μ+φ))",
             Family::Bernoulli => "y log p + (1−y) log(1−p)",
             Family::BernoulliLogit => "yα − log(1 + e^α)",
+        }
+    }
+}
+
+/// A multivariate distribution a model can name; the functions that evaluate each are listed in
+/// the module's INTERFACE notes. Names and parameter orders read as on paper; the link forms
+/// `categorical(k; softmax(s))` and `multinomial(k; softmax(s))` are the `*_scores_*` functions.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Multivariate {
+    Dirichlet,
+    Multinomial,
+    Categorical,
+    Lkj,
+    MvNormal,
+}
+
+impl Multivariate {
+    pub const ALL: &'static [Multivariate] = &[
+        Multivariate::Dirichlet,
+        Multivariate::Multinomial,
+        Multivariate::Categorical,
+        Multivariate::Lkj,
+        Multivariate::MvNormal,
+    ];
+
+    /// The name a model writes.
+    pub fn name(self) -> &'static str {
+        match self {
+            Multivariate::Dirichlet => "dirichlet",
+            Multivariate::Multinomial => "multinomial",
+            Multivariate::Categorical => "categorical",
+            Multivariate::Lkj => "lkj",
+            Multivariate::MvNormal => MvNormal::NAME,
+        }
+    }
+
+    /// Parameter names, in the order they are written.
+    pub fn params(self) -> &'static [&'static str] {
+        match self {
+            Multivariate::Dirichlet => &["concentration"],
+            Multivariate::Multinomial | Multivariate::Categorical => &["probability"],
+            Multivariate::Lkj => &["shape"],
+            Multivariate::MvNormal => MvNormal::PARAMS,
+        }
+    }
+
+    /// The variate in words.
+    pub fn variate(self) -> &'static str {
+        match self {
+            Multivariate::Dirichlet => "a simplex: K ≥ 2 components, each > 0, summing to 1",
+            Multivariate::Multinomial => "K counts (non-negative integers); the total is their sum",
+            Multivariate::Categorical => "a category 1, …, K",
+            Multivariate::Lkj => "the Cholesky factor of a d×d correlation matrix",
+            Multivariate::MvNormal => "a vector of length d, or the rows of a matrix with d columns",
+        }
+    }
+
+    /// The parameters' domain in words.
+    pub fn param_domain(self) -> &'static str {
+        match self {
+            Multivariate::Dirichlet => "concentration: K values > 0, or one (symmetric)",
+            Multivariate::Multinomial | Multivariate::Categorical => {
+                "probability: K values ≥ 0 summing to 1 (or softmax of K scores)"
+            }
+            Multivariate::Lkj => "shape η > 0",
+            Multivariate::MvNormal => {
+                "mean: d values; covariance: d×d symmetric positive definite, or its Cholesky factor"
+            }
+        }
+    }
+
+    /// The log-density as a formula (natural logs), as in the README's reference table.
+    pub fn describe(self) -> &'static str {
+        match self {
+            Multivariate::Dirichlet => "lnΓ(Σα) − Σ lnΓ(αᵢ) + Σ (αᵢ−1) log xᵢ",
+            Multivariate::Multinomial => "lnΓ(n+1) − Σ lnΓ(kᵢ+1) + Σ kᵢ log pᵢ, n = Σ kᵢ",
+            Multivariate::Categorical => "log p_k (with scores s: s_k − log Σ e^{sⱼ})",
+            Multivariate::Lkj => {
+                "Σᵢ₌₂ᵈ (d − i + 2η − 2) log Lᵢᵢ − Σₖ₌₁ᵈ⁻¹ (d−k)[(2βₖ−1) log 2 + log B(βₖ, βₖ)], βₖ = η + (d−1−k)/2"
+            }
+            Multivariate::MvNormal => "−(d/2) log 2π − Σ log Lᵢᵢ − ½‖L⁻¹(x − μ)‖², Σ = L Lᵀ",
         }
     }
 }

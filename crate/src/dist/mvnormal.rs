@@ -143,7 +143,8 @@ impl MvNormal {
 
 /// The number of rows of `x` under the row convention (mean shared or one per row), or `None`.
 fn row_count(x: &[f64], mean: &[f64], d: usize) -> Option<usize> {
-    (d > 0 && !x.is_empty() && x.len() % d == 0 && (mean.len() == d || mean.len() == x.len())).then(|| x.len() / d)
+    (d > 0 && !x.is_empty() && x.len().is_multiple_of(d) && (mean.len() == d || mean.len() == x.len()))
+        .then(|| x.len() / d)
 }
 
 /// Σ = L Lᵀ in place: the lower triangle of the row-major d×d `a` (symmetric, only the lower
@@ -223,7 +224,8 @@ pub fn mvnormal_covariance_log_density(x: &[f64], mean: &[f64], cov: &[f64], dim
     for i in 0..d {
         for j in 0..i {
             let scale = libm::sqrt(cov[i * d + i] * cov[j * d + j]);
-            if !((cov[i * d + j] - cov[j * d + i]).abs() <= SYMMETRY_TOLERANCE * scale) {
+            let asymmetry = (cov[i * d + j] - cov[j * d + i]).abs();
+            if asymmetry.is_nan() || asymmetry > SYMMETRY_TOLERANCE * scale {
                 return f64::NEG_INFINITY;
             }
         }
@@ -294,13 +296,28 @@ mod tests {
         let ninf = f64::NEG_INFINITY;
         let mut scratch = [0.0; 6];
         let l = [1.0, 0.0, 0.5, 1.0];
-        assert_eq!(mvnormal_cholesky_log_density(&[0.0, 0.0], &[0.0, 0.0], &[1.0, 0.0, 0.5, 0.0], 2, &mut scratch), ninf);
+        assert_eq!(
+            mvnormal_cholesky_log_density(&[0.0, 0.0], &[0.0, 0.0], &[1.0, 0.0, 0.5, 0.0], 2, &mut scratch),
+            ninf
+        );
         assert_eq!(mvnormal_cholesky_log_density(&[0.0, 0.0, 1.0], &[0.0, 0.0], &l, 2, &mut scratch), ninf);
         assert_eq!(mvnormal_cholesky_log_density(&[0.0, 0.0], &[0.0, 0.0, 0.0], &l, 2, &mut scratch), ninf);
         assert_eq!(mvnormal_cholesky_log_density(&[0.0, 0.0], &[0.0, 0.0], &l, 2, &mut scratch[..1]), ninf);
-        assert_eq!(mvnormal_covariance_log_density(&[0.0, 0.0], &[0.0, 0.0], &[1.0, 2.0, 2.0, 1.0], 2, &mut scratch), ninf);
-        assert_eq!(mvnormal_covariance_log_density(&[0.0, 0.0], &[0.0, 0.0], &[1.0, 0.5, 0.4, 1.0], 2, &mut scratch), ninf);
-        assert_eq!(mvnormal_covariance_log_density(&[0.0, 0.0], &[0.0, 0.0], &[1.0, 0.0, 0.0, 1.0], 2, &mut scratch[..5]), ninf);
-        assert_eq!(mvnormal_covariance_log_density(&[f64::NAN, 0.0], &[0.0, 0.0], &[1.0, 0.0, 0.0, 1.0], 2, &mut scratch), ninf);
+        assert_eq!(
+            mvnormal_covariance_log_density(&[0.0, 0.0], &[0.0, 0.0], &[1.0, 2.0, 2.0, 1.0], 2, &mut scratch),
+            ninf
+        );
+        assert_eq!(
+            mvnormal_covariance_log_density(&[0.0, 0.0], &[0.0, 0.0], &[1.0, 0.5, 0.4, 1.0], 2, &mut scratch),
+            ninf
+        );
+        assert_eq!(
+            mvnormal_covariance_log_density(&[0.0, 0.0], &[0.0, 0.0], &[1.0, 0.0, 0.0, 1.0], 2, &mut scratch[..5]),
+            ninf
+        );
+        assert_eq!(
+            mvnormal_covariance_log_density(&[f64::NAN, 0.0], &[0.0, 0.0], &[1.0, 0.0, 0.0, 1.0], 2, &mut scratch),
+            ninf
+        );
     }
 }

@@ -74,15 +74,21 @@ impl IncompleteBeta {
         }
         // One shape large and the variate close to the end it crowds against: there the continued
         // fraction cancels (its denominators are 1 − x·(1 + O(1/a))), so expand instead.
-        if a >= EXPANSION_FROM && b < a && y < EXPANSION_NEAR && y * b <= 1.0 {
-            if let Some(tail) = large_first_shape(a, b, y) {
-                return tail;
-            }
+        if a >= EXPANSION_FROM
+            && b < a
+            && y < EXPANSION_NEAR
+            && y * b <= 1.0
+            && let Some(tail) = large_first_shape(a, b, y)
+        {
+            return tail;
         }
-        if b >= EXPANSION_FROM && a < b && x < EXPANSION_NEAR && x * a <= 1.0 {
-            if let Some(tail) = large_first_shape(b, a, x) {
-                return tail.flip();
-            }
+        if b >= EXPANSION_FROM
+            && a < b
+            && x < EXPANSION_NEAR
+            && x * a <= 1.0
+            && let Some(tail) = large_first_shape(b, a, x)
+        {
+            return tail.flip();
         }
         let front = self.ln_front(x, y);
         if x < (a + 1.0) / (a + b + 2.0) {

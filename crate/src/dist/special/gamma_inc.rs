@@ -18,7 +18,7 @@
 //! Stirling error δ and deviance term D, so that no two large logarithms are subtracted.
 
 use super::temme::TEMME;
-use super::{HALF_LN_2PI, MAX_TERMS, Tail, deviance_term, ln_gamma_1p, lentz_step, stirling_error};
+use super::{HALF_LN_2PI, MAX_TERMS, Tail, deviance_term, lentz_step, ln_gamma_1p, stirling_error};
 
 /// Shapes from here on use Loader's form of the factor xᵃe⁻ˣ/Γ(a+1).
 const LOADER_FROM: f64 = 15.0;
@@ -49,13 +49,17 @@ impl IncompleteGamma {
 
     /// log[xᵃ e⁻ˣ / Γ(a + 1)] for x > 0 (the Poisson probability of a at mean x, for integer a).
     pub(crate) fn ln_front(&self, x: f64) -> f64 {
-        if self.a < LOADER_FROM { self.a * libm::log(x) - x + self.front } else { self.front - deviance_term(self.a, x) }
+        if self.a < LOADER_FROM {
+            self.a * libm::log(x) - x + self.front
+        } else {
+            self.front - deviance_term(self.a, x)
+        }
     }
 
     /// log P(a, x) or log Q(a, x), whichever is computed directly at x. NaN for NaN or x < 0.
     pub(crate) fn tail(&self, x: f64) -> Tail {
         let a = self.a;
-        if !(x >= 0.0) {
+        if x.is_nan() || x < 0.0 {
             return Tail::lower(f64::NAN);
         }
         if x == 0.0 {

@@ -188,7 +188,8 @@ pub fn deviance_term(x: f64, m: f64) -> f64 {
     } else {
         let ratio = x / m;
         // The quotient can overflow or underflow where the difference of logarithms cannot.
-        let log_ratio = if ratio > 0.0 && ratio < f64::INFINITY { libm::log(ratio) } else { libm::log(x) - libm::log(m) };
+        let log_ratio =
+            if ratio > 0.0 && ratio < f64::INFINITY { libm::log(ratio) } else { libm::log(x) - libm::log(m) };
         x * log_ratio + m - x
     }
 }
