@@ -404,3 +404,53 @@ fn log_density_each_matches_the_scalar_density() {
         assert_eq!(sum, out.iter().sum::<f64>(), "{family:?}");
     }
 }
+
+/// Parameters outside their domain (BDA3 Appendix A definitions) give −∞ for both sides and for
+/// intervals, whether the parameters are broadcast or per element.
+#[test]
+fn parameters_outside_their_domain_give_minus_infinity() {
+    let (nan, inf) = (f64::NAN, f64::INFINITY);
+    let cases: &[(&str, &[f64], f64)] = &[
+        ("normal", &[0.0, 0.0], 0.5),
+        ("normal", &[inf, 1.0], 0.5),
+        ("normal", &[0.0, -1.0], 0.5),
+        ("student_t", &[0.0, 0.0, 1.0], 0.5),
+        ("student_t", &[3.0, -inf, 1.0], 0.5),
+        ("student_t", &[3.0, 0.0, inf], 0.5),
+        ("cauchy", &[nan, 1.0], 0.5),
+        ("laplace", &[0.0, 0.0], 0.5),
+        ("logistic", &[inf, 1.0], 0.5),
+        ("exponential", &[-1.0], 0.5),
+        ("gamma", &[0.0, 1.0], 0.5),
+        ("gamma", &[2.0, inf], 0.5),
+        ("gamma", &[2.0, -1.0], 0.5),
+        ("inv_gamma", &[2.0, 0.0], 0.5),
+        ("beta", &[1.0, -2.0], 0.5),
+        ("lognormal", &[-inf, 1.0], 0.5),
+        ("uniform", &[2.0, 1.0], 1.5),
+        ("halfnormal", &[0.0], 0.5),
+        ("halfcauchy", &[nan], 0.5),
+        ("weibull", &[1.0, 0.0], 0.5),
+        ("poisson", &[0.0], 1.0),
+        ("binomial", &[10.5, 0.5], 3.0),
+        ("binomial", &[10.0, 1.5], 3.0),
+        ("negbinomial", &[1.0, 0.0], 1.0),
+        ("bernoulli", &[1.5], 0.0),
+        ("bernoulli_logit", &[nan], 0.0),
+    ];
+    for &(name, params, x) in cases {
+        let family = fam(name);
+        let ninf = f64::NEG_INFINITY;
+        assert_eq!(log_cdf(family, x, params), ninf, "{name}{params:?} log_cdf");
+        assert_eq!(log_ccdf(family, x, params), ninf, "{name}{params:?} log_ccdf");
+        assert_eq!(log_interval(family, x - 1.0, x + 1.0, params), ninf, "{name}{params:?} log_interval");
+        // Per element: the first element valid, the second not.
+        let valid = params_for(family, [0.5, 0.5, 0.5]);
+        let columns: Vec<[f64; 2]> = valid.iter().zip(params).map(|(&v, &bad)| [v, bad]).collect();
+        let cols: Vec<Col> = columns.iter().map(|c| Col::vector(c)).collect();
+        let mut out = [0.0; 2];
+        log_ccdf_each(family, Col::scalar(&[x]), &cols, &mut out);
+        assert_eq!(out[0], log_ccdf(family, x, &valid), "{name}: the valid element");
+        assert_eq!(out[1], ninf, "{name}{params:?} per element");
+    }
+}

@@ -79,30 +79,43 @@ macro_rules! tails_from_kernel {
     };
 }
 
+/// A location parameter must be finite (the density kernels need not check it: an infinite
+/// location already gives density 0 there, but it would give a distribution function of 0 or 1).
+#[inline]
+fn located(location: f64, tail: impl FnOnce() -> Tail) -> Tail {
+    if location.is_finite() { tail() } else { INVALID }
+}
+
 // normal(mean, sd): Φ((x − μ)/σ).
-tails_from_kernel!(families::Normal, false, |self, x, p| normal_tail((x - p[0]) / p[1]));
+tails_from_kernel!(families::Normal, false, |self, x, p| located(p[0], || normal_tail((x - p[0]) / p[1])));
 
 // lognormal(meanlog, sdlog): Φ((log x − μ)/σ) on x > 0.
 tails_from_kernel!(families::LogNormal, false, |self, x, p| {
-    if x <= 0.0 { NONE_BELOW } else { normal_tail((log(x) - p[0]) / p[1]) }
+    located(p[0], || if x <= 0.0 { NONE_BELOW } else { normal_tail((log(x) - p[0]) / p[1]) })
 });
 
 // cauchy(location, scale): F(z) = atan2(1, −z)/π, S(z) = atan2(1, z)/π, each exact on its side.
 tails_from_kernel!(families::Cauchy, false, |self, x, p| {
     let z = (x - p[0]) / p[1];
-    if z < 0.0 { Tail::lower(log(libm::atan2(1.0, -z)) - LN_PI) } else { Tail::upper(log(libm::atan2(1.0, z)) - LN_PI) }
+    located(p[0], || {
+        if z < 0.0 {
+            Tail::lower(log(libm::atan2(1.0, -z)) - LN_PI)
+        } else {
+            Tail::upper(log(libm::atan2(1.0, z)) - LN_PI)
+        }
+    })
 });
 
 // laplace(location, scale): ½e^{z} below the location, ½e^{−z} above.
 tails_from_kernel!(families::Laplace, false, |self, x, p| {
     let z = (x - p[0]) / p[1];
-    if z < 0.0 { Tail::lower(z - LN_2) } else { Tail::upper(-z - LN_2) }
+    located(p[0], || if z < 0.0 { Tail::lower(z - LN_2) } else { Tail::upper(-z - LN_2) })
 });
 
 // logistic(location, scale): log F = −log(1 + e^{−z}), log S = −log(1 + e^{z}).
 tails_from_kernel!(families::Logistic, false, |self, x, p| {
     let z = (x - p[0]) / p[1];
-    if z < 0.0 { Tail::lower(-log1p_exp(-z)) } else { Tail::upper(-log1p_exp(z)) }
+    located(p[0], || if z < 0.0 { Tail::lower(-log1p_exp(-z)) } else { Tail::upper(-log1p_exp(z)) })
 });
 
 // exponential(rate): S = e^{−λx}.
@@ -218,7 +231,7 @@ tails_from_kernel!(families::BernoulliLogit, true, |self, x, p| {
 /// A 0/1 variate's sides at x, given the log of its smaller side: P(X = 1) (`upper`) or P(X = 0).
 #[inline]
 fn bernoulli_tail(x: f64, upper: bool, ln_smaller: f64) -> Tail {
-    if x.is_nan() {
+    if x.is_nan() || ln_smaller.is_nan() {
         INVALID
     } else if x < 0.0 {
         NONE_BELOW
@@ -250,6 +263,9 @@ impl Tails for StudentTTails {
         Some(StudentTTails { beta, far: (0.5 * dof - 1.0) * log(dof) - special::lbeta(0.5 * dof, 0.5) })
     }
     fn tail(&self, x: f64, p: &Params) -> Tail {
+        if !p[1].is_finite() {
+            return INVALID;
+        }
         let (dof, t) = (p[0], (x - p[1]) / p[2]);
         let tt = t * t;
         let ln_small = if tt.is_nan() {
@@ -265,33 +281,26 @@ impl Tails for StudentTTails {
     }
 }
 
-/// gamma(shape, rate): P(α, βx).
-pub(super) struct GammaTails(IncompleteGamma);
+/// gamma(shape, rate): P(α, βx); with `INVERSE`, inv_gamma(shape, scale): P(X ≤ x) = Q(α, β/x).
+pub(super) struct GammaTails<const INVERSE: bool>(IncompleteGamma);
 
-impl Tails for GammaTails {
+impl<const INVERSE: bool> Tails for GammaTails<INVERSE> {
     const HOISTED: u8 = 0b001;
     fn prepare(p: &Params) -> Option<Self> {
-        let rate = p[1];
-        (rate > 0.0 && rate < f64::INFINITY).then_some(())?;
         IncompleteGamma::new(p[0]).map(GammaTails)
     }
+    /// The rate (or scale) is checked here, so that a shape shared by every element is prepared
+    /// once while each element has its own rate (a gamma regression).
     fn tail(&self, x: f64, p: &Params) -> Tail {
-        if x <= 0.0 { NONE_BELOW } else { self.0.tail(p[1] * x) }
-    }
-}
-
-/// inv_gamma(shape, scale): P(X ≤ x) = Q(α, β/x).
-pub(super) struct InvGammaTails(IncompleteGamma);
-
-impl Tails for InvGammaTails {
-    const HOISTED: u8 = 0b001;
-    fn prepare(p: &Params) -> Option<Self> {
-        let scale = p[1];
-        (scale > 0.0 && scale < f64::INFINITY).then_some(())?;
-        IncompleteGamma::new(p[0]).map(InvGammaTails)
-    }
-    fn tail(&self, x: f64, p: &Params) -> Tail {
-        if x <= 0.0 { NONE_BELOW } else { self.0.tail(p[1] / x).flip() }
+        if !(p[1] > 0.0 && p[1] < f64::INFINITY) {
+            INVALID
+        } else if x <= 0.0 {
+            NONE_BELOW
+        } else if INVERSE {
+            self.0.tail(p[1] / x).flip()
+        } else {
+            self.0.tail(p[1] * x)
+        }
     }
 }
 

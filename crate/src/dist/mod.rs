@@ -382,8 +382,8 @@ macro_rules! with_family {
             Family::Laplace => with_family!(@ families::Laplace, families::Laplace, $k, $t, $body),
             Family::Logistic => with_family!(@ families::Logistic, families::Logistic, $k, $t, $body),
             Family::Exponential => with_family!(@ families::Exponential, families::Exponential, $k, $t, $body),
-            Family::Gamma => with_family!(@ families::Gamma, cdf::GammaTails, $k, $t, $body),
-            Family::InvGamma => with_family!(@ families::InvGamma, cdf::InvGammaTails, $k, $t, $body),
+            Family::Gamma => with_family!(@ families::Gamma, cdf::GammaTails<false>, $k, $t, $body),
+            Family::InvGamma => with_family!(@ families::InvGamma, cdf::GammaTails<true>, $k, $t, $body),
             Family::Beta => with_family!(@ families::Beta, cdf::BetaTails, $k, $t, $body),
             Family::LogNormal => with_family!(@ families::LogNormal, families::LogNormal, $k, $t, $body),
             Family::Uniform => with_family!(@ families::Uniform, families::Uniform, $k, $t, $body),
@@ -429,10 +429,8 @@ trait Elementwise {
 
 /// log f(x).
 struct Density<K>(PhantomData<K>);
-/// log P(X ≤ x).
-struct LnCdf<T>(PhantomData<T>);
-/// log P(X > x).
-struct LnCcdf<T>(PhantomData<T>);
+/// log P(X ≤ x) (`UPPER` false) or log P(X > x) (`UPPER` true).
+struct LnSide<T, const UPPER: bool>(PhantomData<T>);
 /// log P(x < X ≤ y).
 struct LnInterval<K, T>(PhantomData<(K, T)>);
 
@@ -453,7 +451,7 @@ impl<K: Kernel> Elementwise for Density<K> {
     }
 }
 
-impl<T: Tails> Elementwise for LnCdf<T> {
+impl<T: Tails, const UPPER: bool> Elementwise for LnSide<T, UPPER> {
     type State = T;
     const HOISTED: u8 = T::HOISTED;
     #[inline]
@@ -462,20 +460,8 @@ impl<T: Tails> Elementwise for LnCdf<T> {
     }
     #[inline]
     fn eval(tails: &T, x: f64, _: f64, p: &Params) -> f64 {
-        tails.tail(x, p).ln_lower()
-    }
-}
-
-impl<T: Tails> Elementwise for LnCcdf<T> {
-    type State = T;
-    const HOISTED: u8 = T::HOISTED;
-    #[inline]
-    fn prepare(p: &Params) -> Option<T> {
-        T::prepare(p)
-    }
-    #[inline]
-    fn eval(tails: &T, x: f64, _: f64, p: &Params) -> f64 {
-        tails.tail(x, p).ln_upper()
+        let tail = tails.tail(x, p);
+        if UPPER { tail.ln_upper() } else { tail.ln_lower() }
     }
 }
 
@@ -586,13 +572,13 @@ pub fn sum_log_density(family: Family, n: usize, x: Col, params: &[Col]) -> f64 
 /// families at ⌊xᵢ⌋. Same conventions as [`sum_log_density`].
 pub fn sum_log_cdf(family: Family, n: usize, x: Col, params: &[Col]) -> f64 {
     let cols = padded(family, n, &[x], params);
-    with_family!(family, |K, T| sum_of::<LnCdf<T>>(n, x, NO_Y, cols))
+    with_family!(family, |K, T| sum_of::<LnSide<T, false>>(n, x, NO_Y, cols))
 }
 
 /// Σᵢ log P(X > xᵢ; θᵢ) (right censoring). Discrete families at ⌊xᵢ⌋.
 pub fn sum_log_ccdf(family: Family, n: usize, x: Col, params: &[Col]) -> f64 {
     let cols = padded(family, n, &[x], params);
-    with_family!(family, |K, T| sum_of::<LnCcdf<T>>(n, x, NO_Y, cols))
+    with_family!(family, |K, T| sum_of::<LnSide<T, true>>(n, x, NO_Y, cols))
 }
 
 /// Σᵢ log P(lowerᵢ < X ≤ upperᵢ; θᵢ) (interval censoring). An empty interval (lower ≥ upper, or the
@@ -612,13 +598,13 @@ pub fn log_density_each(family: Family, x: Col, params: &[Col], out: &mut [f64])
 /// log P(X ≤ xᵢ; θᵢ) into `out[i]` (truncation and censoring of lists).
 pub fn log_cdf_each(family: Family, x: Col, params: &[Col], out: &mut [f64]) {
     let cols = padded(family, out.len(), &[x], params);
-    with_family!(family, |K, T| each_of::<LnCdf<T>>(x, NO_Y, cols, out))
+    with_family!(family, |K, T| each_of::<LnSide<T, false>>(x, NO_Y, cols, out))
 }
 
 /// log P(X > xᵢ; θᵢ) into `out[i]`.
 pub fn log_ccdf_each(family: Family, x: Col, params: &[Col], out: &mut [f64]) {
     let cols = padded(family, out.len(), &[x], params);
-    with_family!(family, |K, T| each_of::<LnCcdf<T>>(x, NO_Y, cols, out))
+    with_family!(family, |K, T| each_of::<LnSide<T, true>>(x, NO_Y, cols, out))
 }
 
 /// log P(lowerᵢ < X ≤ upperᵢ; θᵢ) into `out[i]` (truncation to a range, per element).

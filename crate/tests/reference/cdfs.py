@@ -29,14 +29,14 @@ Rerun from the repository root (versions pinned in requirements.txt); it takes a
     python3 crate/tests/reference/cdfs.py
 """
 
-import json
 import math
-import os
 import sys
 
 import mpmath as mp
 import numpy as np
 import scipy
+
+from fixture_io import write_fixture
 
 mp.mp.dps = 50
 INF = mp.inf
@@ -603,19 +603,7 @@ def main():
         "families": families,
         "intervals": intervals,
     }
-    path = os.path.join(os.path.dirname(os.path.abspath(__file__)), "cdfs.json")
-    with open(path, "w") as f:
-        f.write("{\n")
-        keys = list(out)
-        for key in keys:
-            value = out[key]
-            if isinstance(value, list):
-                lines = ",\n".join("  " + json.dumps(r) for r in value)
-                f.write(f' "{key}": [\n{lines}\n ]')
-            else:
-                f.write(f' "{key}": {json.dumps(value)}')
-            f.write(",\n" if key != keys[-1] else "\n")
-        f.write("}\n")
+    path = write_fixture(__file__, "cdfs.json", out)
     print(f"wrote {path}", file=sys.stderr)
 
 

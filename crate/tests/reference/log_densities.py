@@ -17,14 +17,14 @@ Rerun from the repository root (versions pinned in requirements.txt):
 Generated with numpy 2.4.6, scipy 1.17.1, mpmath 1.3.0 (also recorded in the JSON).
 """
 
-import json
-import os
 
 import mpmath as mp
 import numpy as np
 import scipy
 import scipy.special as sp
 import scipy.stats as st
+
+from fixture_io import write_fixture
 
 mp.mp.dps = 50
 
@@ -424,18 +424,7 @@ def main():
         "mvnormal": mvn,
         "special": special,
     }
-    path = os.path.join(os.path.dirname(os.path.abspath(__file__)), "log_densities.json")
-    # One case per line keeps the fixture readable and its diffs small.
-    with open(path, "w") as f:
-        f.write("{\n")
-        for key, value in out.items():
-            if isinstance(value, list):
-                lines = ",\n".join("  " + json.dumps(r) for r in value)
-                f.write(f' "{key}": [\n{lines}\n ]')
-            else:
-                f.write(f' "{key}": {json.dumps(value)}')
-            f.write(",\n" if key != "special" else "\n")
-        f.write("}\n")
+    path = write_fixture(__file__, "log_densities.json", out)
     disagree = [(c.get("family") or c.get("function") or "mvnormal", c.get("params") or c.get("args"))
                 for c in cases + mvn + special if not c["scipy_agrees"]]
     print(f"wrote {path}: {len(cases)} cases, {len(mvn)} mvnormal, {len(special)} special")

@@ -16,14 +16,14 @@ Rerun from the repository root (versions pinned in requirements.txt):
     python3 crate/tests/reference/multivariate.py
 """
 
-import json
-import os
 
 import mpmath as mp
 import numpy as np
 import scipy
 import scipy.special as sp
 import scipy.stats as st
+
+from fixture_io import write_fixture
 
 mp.mp.dps = 50
 
@@ -165,19 +165,7 @@ def main():
         "mvnormal": mvn,
         "lkj_d2": lkj2,
     }
-    path = os.path.join(os.path.dirname(os.path.abspath(__file__)), "multivariate.json")
-    with open(path, "w") as f:
-        f.write("{\n")
-        keys = list(out)
-        for key in keys:
-            value = out[key]
-            if isinstance(value, list):
-                lines = ",\n".join("  " + json.dumps(r) for r in value)
-                f.write(f' "{key}": [\n{lines}\n ]')
-            else:
-                f.write(f' "{key}": {json.dumps(value)}')
-            f.write(",\n" if key != keys[-1] else "\n")
-        f.write("}\n")
+    path = write_fixture(__file__, "multivariate.json", out)
     print("wrote", path)
 
 
