@@ -25,6 +25,7 @@ await esbuild.build({
     app: join(www, 'src/app.js'),
     worker: join(www, 'src/worker.js'),
     'chain-worker': join(www, 'src/chain-worker.js'),
+    'diagnose-worker': join(www, 'src/diagnose-worker.js'),
   },
   outdir: out,
   bundle: true,
@@ -58,4 +59,4 @@ const examples = readdirSync(examplesDir)
   });
 if (examples.length === 0) throw new Error('no examples/*.mw found');
 writeFileSync(join(out, 'examples.json'), JSON.stringify(examples, null, 1) + '\n');
-console.log(`www/bundle.mjs: bundled app.js (+ app.css), worker.js and chain-worker.js, wrote ${examples.length} examples`);
+console.log(`www/bundle.mjs: bundled app.js (+ app.css) and the workers, wrote ${examples.length} examples`);

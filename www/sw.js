@@ -3,11 +3,11 @@
 // at once; only when the network fails does the kept copy answer. It never fetches anything but
 // the page's own files.
 
-const CACHE = 'mixwell-page-v1';
+const CACHE = 'mixwell-page-v2';
 // Everything the page and its workers load, so that a run can start offline.
 const FILES = [
   './', 'index.html', 'style.css', 'icon.svg',
-  'pkg/app.js', 'pkg/app.css', 'pkg/worker.js', 'pkg/chain-worker.js',
+  'pkg/app.js', 'pkg/app.css', 'pkg/worker.js', 'pkg/chain-worker.js', 'pkg/diagnose-worker.js',
   'pkg/mixwell.js', 'pkg/mixwell_bg.wasm', 'pkg/examples.json',
 ];
 

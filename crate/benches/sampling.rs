@@ -11,11 +11,12 @@
 //! own work); and the speed-up of the threaded run over that one chain, in evaluations per second
 //! (at best min(chains, cores); less means thread hand-offs, or other load on the machine).
 
-use mixwell::chain::conductor::{Progress, RunConfig, Tuning, pooled_geometry};
-use mixwell::chain::{Chain, Record, Task, threads};
+use mixwell::chain::conductor::Progress;
+use mixwell::chain::{Chain, Moments, Record, Task, threads};
 use mixwell::diag;
-use mixwell::kernel::Settings;
+use mixwell::kernel::{Kind, Settings};
 use mixwell::model::check;
+use mixwell::plan::{Phase, RunConfig, Tuning};
 use mixwell::rng::Stream;
 use mixwell::tape::Tape;
 use std::hint::black_box;
@@ -64,14 +65,14 @@ fn main() {
             Tape::new(&check(&bench.source).unwrap_or_else(|d| panic!("{}", d.render(bench.name, &bench.source))));
         let bare = fastest(repetitions, || bare_seconds_per_evaluation(&tape));
         let mut rw_ess_per_second = f64::NAN;
-        for (kind, draws) in [("rwm", RW_DRAWS), ("slice", SLICE_DRAWS)] {
+        for (kind, draws) in [(Kind::RandomWalk, RW_DRAWS), (Kind::Slice, SLICE_DRAWS)] {
             let settings = Settings::default_for(kind, tape.dim());
             let mut runs: Vec<Measured> = (0..repetitions).map(|_| sample(&tape, settings.clone(), draws)).collect();
             runs.sort_by(|a, b| a.seconds.total_cmp(&b.seconds));
             let m = &runs[0];
             let total_draws = (CHAINS * draws) as f64;
             let ess_per_second = m.min_ess / m.seconds;
-            let versus = if kind == "rwm" {
+            let versus = if kind == Kind::RandomWalk {
                 rw_ess_per_second = ess_per_second;
                 "1".to_string()
             } else {
@@ -81,7 +82,7 @@ fn main() {
             println!(
                 "{:<44} {:<12} {:>10.0} {:>9.0} {:>10.0} {:>11.2} {:>14} {:>10.3} {:>10.3} {:>9.2}",
                 bench.name,
-                if kind == "rwm" { "random walk" } else { "slice" },
+                if kind == Kind::RandomWalk { "random walk" } else { "slice" },
                 total_draws / m.seconds,
                 m.min_ess,
                 ess_per_second,
@@ -103,8 +104,8 @@ fn sample(tape: &Tape, settings: Settings, draws: usize) -> Measured {
     let mut started: Option<Instant> = None;
     let mut seconds = 0.0;
     let collected = threads::run(tape, config, |p: &Progress| match p.phase {
-        "sampling" if started.is_none() => started = Some(Instant::now()),
-        "done" => seconds = started.map_or(0.0, |t| t.elapsed().as_secs_f64()),
+        Phase::Sampling if started.is_none() => started = Some(Instant::now()),
+        Phase::Done => seconds = started.map_or(0.0, |t| t.elapsed().as_secs_f64()),
         _ => {}
     })
     .expect("chains start");
@@ -130,7 +131,7 @@ fn fastest(n: usize, mut time: impl FnMut() -> f64) -> f64 {
 fn direct_seconds_per_evaluation(tape: &Tape, settings: Settings, draws: usize) -> f64 {
     let mut chain = Chain::new(tape, SEED, 0).expect("the chain starts");
     let pilot = chain.perform(tape, &Task::Pilot { sweeps: PILOT }).rows;
-    let geometry = pooled_geometry(&[pilot.as_slice()], tape.dim());
+    let geometry = Moments::pooled(&[pilot.as_slice()], tape.dim()).geometry();
     chain.perform(tape, &Task::Configure { settings, geometry });
     chain.perform(tape, &Task::Run { steps: WARMUP, record: Record::Nothing });
     let start = Instant::now();

@@ -25,11 +25,11 @@
 //! independent streams. Every figure except the seconds is fixed by the seeds, so it is the same
 //! on any machine and however the threads are scheduled.
 
-use mixwell::chain::conductor::{RunConfig, pooled_geometry};
-use mixwell::chain::{Chain, Record, Task, threads};
+use mixwell::chain::{Chain, Moments, Record, Task, threads};
 use mixwell::diag;
 use mixwell::kernel::{Geometry, Settings};
 use mixwell::model::check;
+use mixwell::plan::{Options, RunConfig};
 use mixwell::tape::Tape;
 use std::sync::Mutex;
 use std::sync::atomic::{AtomicUsize, Ordering};
@@ -106,13 +106,13 @@ impl Kind {
         }
     }
 
-    /// The name a run configuration knows the kernel by.
-    fn key(self) -> &'static str {
-        if self == Kind::RandomWalk { "rwm" } else { "slice" }
+    /// The kind of kernel as the library knows it.
+    fn library(self) -> mixwell::kernel::Kind {
+        if self == Kind::RandomWalk { mixwell::kernel::Kind::RandomWalk } else { mixwell::kernel::Kind::Slice }
     }
 
     fn default_settings(self, dim: usize) -> Settings {
-        Settings::default_for(self.key(), dim)
+        Settings::default_for(self.library(), dim)
     }
 
     fn methods(self) -> &'static [&'static str] {
@@ -272,19 +272,25 @@ fn pilot(tape: &Tape, seed: u64, plan: &Plan) -> (Vec<Chain>, Geometry) {
     let rows: Vec<Vec<f64>> =
         chains.iter_mut().map(|c| c.perform(tape, &Task::Pilot { sweeps: plan.pilot }).rows).collect();
     let slices: Vec<&[f64]> = rows.iter().map(Vec::as_slice).collect();
-    (chains, pooled_geometry(&slices, tape.dim()))
+    (chains, Moments::pooled(&slices, tape.dim()).geometry())
 }
 
 /// A method's choice through the library's own run (no draws: tuning only).
 fn tune(tape: &Tape, kind: Kind, method: &str, seed: u64, plan: &Plan, pilot_geometry: &Geometry) -> Frozen {
     // Exactly what `mixwell run --tune METHOD` would do (default budget, and the score the
     // product uses for this kernel), with the bench's chains and pilot and no draws.
+    let options = Options {
+        sampler: Some(kind.library()),
+        tune: Some(method.parse().expect("a known method")),
+        seed: Some(seed),
+        ..Options::default()
+    };
     let config = RunConfig {
         chains: plan.chains,
         warmup: 0,
         draws: 0,
         pilot: plan.pilot,
-        ..RunConfig::default_for(kind.key(), method, tape.dim(), seed).expect("a known method")
+        ..options.resolve(tape.dim()).expect("a valid run")
     };
     let t = Instant::now();
     let collected = threads::run(tape, config, |_| {}).expect("chains start");

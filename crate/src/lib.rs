@@ -8,10 +8,13 @@
 pub mod chain;
 pub mod diag;
 pub mod dist;
+pub mod draws_csv;
 pub mod kernel;
 pub mod lang;
 pub mod link;
 pub mod model;
+pub mod names;
+pub mod plan;
 pub mod report;
 pub mod rng;
 pub mod tape;

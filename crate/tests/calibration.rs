@@ -11,10 +11,10 @@
 mod common;
 
 use common::{compile, kernels};
-use mixwell::chain::conductor::{RunConfig, Tuning};
 use mixwell::chain::threads;
 use mixwell::diag;
 use mixwell::kernel::Settings;
+use mixwell::plan::{RunConfig, Tuning};
 use mixwell::rng::Stream;
 use mixwell::tape::Tape;
 

@@ -127,7 +127,8 @@ fn conjugate_posteriors_are_recovered_by_every_kernel() {
 fn derived_quantities_follow_their_parameters() {
     let source = format!("{NORMAL_INVERSE_GAMMA}sigma = sqrt(variance)\n");
     let tape = compile(&source);
-    let collected = sample(&tape, mixwell::kernel::Settings::default_for("slice", 2), 4, 1000, 5000, 7);
+    let collected =
+        sample(&tape, mixwell::kernel::Settings::default_for(mixwell::kernel::Kind::Slice, 2), 4, 1000, 5000, 7);
     let s = diag::summarise(&slices(&column(&tape, &collected, "sigma")));
     let exact = 0.9352969302278117; // REFERENCES.md §10(b)
     assert!((s.mean - exact).abs() < 4.0 * s.mcse_mean, "E[sigma] {} vs {exact} (MCSE {})", s.mean, s.mcse_mean);

@@ -5,10 +5,11 @@
 mod common;
 
 use common::{column, compile, slices};
-use mixwell::chain::conductor::{Collected, RunConfig, Tuning};
+use mixwell::chain::conductor::Collected;
 use mixwell::chain::threads;
 use mixwell::diag;
-use mixwell::kernel::Settings;
+use mixwell::kernel::{Kind, Settings};
+use mixwell::plan::{RunConfig, Tuning};
 use mixwell::tape::Tape;
 use mixwell::tune::policy::{BoConfig, Freeze};
 
@@ -34,8 +35,13 @@ fn acceptance(c: &Collected) -> f64 {
 fn bayesian_optimisation_finds_the_optimal_random_walk_scale() {
     for (d, acceptance_band) in [(2, (0.197, 0.527)), (10, (0.120, 0.451)), (20, (0.106, 0.448))] {
         let tape = standard_normal(d);
-        let collected =
-            run(&tape, Settings::default_for("rwm", d), Tuning::Bo(BoConfig::default()), 1000, 40 + d as u64);
+        let collected = run(
+            &tape,
+            Settings::default_for(Kind::RandomWalk, d),
+            Tuning::Bo(BoConfig::default()),
+            1000,
+            40 + d as u64,
+        );
         let Settings::RandomWalk { scale, .. } = collected.settings else { panic!("a random walk was tuned") };
         // The proposal is scale × the pilot's covariance factor; the pilot's sd is about 1.
         let pilot_sd = (0..d).map(|i| collected.geometry.sd(i)).sum::<f64>() / d as f64;
@@ -55,7 +61,7 @@ fn bayesian_optimisation_finds_the_optimal_random_walk_scale() {
 #[test]
 fn robbins_monro_reaches_its_fixed_point() {
     let tape = standard_normal(1);
-    let collected = run(&tape, Settings::default_for("rwm", 1), Tuning::Rm { steps: 5000 }, 200, 3);
+    let collected = run(&tape, Settings::default_for(Kind::RandomWalk, 1), Tuning::Rm { steps: 5000 }, 200, 3);
     let Settings::RandomWalk { scale, .. } = collected.settings else { panic!("a random walk") };
     let sigma = scale * collected.geometry.sd(0);
     assert!((sigma / 2.417585 - 1.0).abs() < 0.12, "adapted σ = {sigma:.4}, fixed point 2.4176");
@@ -67,7 +73,7 @@ fn robbins_monro_reaches_its_fixed_point() {
 #[test]
 fn adaptive_metropolis_learns_the_covariance() {
     let tape = compile("x : real[2]\ndensity = mvnormal(x; [1, -1], [[4, 2.4], [2.4, 9]])\n");
-    let collected = run(&tape, Settings::default_for("rwm", 2), Tuning::Am { steps: 20_000 }, 200, 9);
+    let collected = run(&tape, Settings::default_for(Kind::RandomWalk, 2), Tuning::Am { steps: 20_000 }, 200, 9);
     let c = &collected.geometry.covariance;
     for (got, exact) in c.iter().zip([4.0, 2.4, 2.4, 9.0]) {
         assert!((got / exact - 1.0).abs() < 0.10, "learned covariance {c:?}");
@@ -89,7 +95,7 @@ fn frozen_kernels_still_sample_the_posterior() {
     ];
     for (k, (source, name, mean)) in cases.into_iter().enumerate() {
         let tape = compile(source);
-        for kind in ["rwm", "slice"] {
+        for kind in [Kind::RandomWalk, Kind::Slice] {
             for freeze in [Freeze::Best, Freeze::Mixture] {
                 let bo = BoConfig { trials: 30, window: 100, freeze, ..BoConfig::default() };
                 let collected = run(&tape, Settings::default_for(kind, 1), Tuning::Bo(bo), 4000, 70 + k as u64);

@@ -102,7 +102,7 @@ test('a link whose model does not read opens, shows the error, and cannot be sta
     const link = await page.evaluate(async (model) => {
       const engine = await import('./pkg/mixwell.js');
       await engine.default();
-      const config = engine.default_config('mu : real\ndensity = normal(mu; 0, 1)\n', 'rwm', 'bo', 12);
+      const { config } = engine.plan_run('mu : real\ndensity = normal(mu; 0, 1)\n', { options: { seed: 12 } });
       return engine.make_link(model, config, location.origin + location.pathname);
     }, broken);
     await page.goto(link);

@@ -21,6 +21,8 @@ const QUICK: &[&str] =
     &["--draws", "100", "--warmup", "50", "--trials", "4", "--window", "20", "--pilot", "20", "--seed", "1", "--quiet"];
 
 const NORMAL: &str = "mu : real\ndensity = normal(mu; 0, 1)\n";
+/// A model with 2,000 coordinates, for runs whose memory grows with the dimension.
+const WIDE: &str = "x : real[2000]\ndensity = normal(x; 0, 1)\n";
 
 /// (what, arguments after `run` or the command, model on standard input, expectation).
 const CASES: &[(&str, &[&str], &str, Expect)] = &[
@@ -29,31 +31,74 @@ const CASES: &[(&str, &[&str], &str, Expect)] = &[
         "no chains",
         &["run", "-", "--chains", "0"],
         NORMAL,
-        Refused { starts: "the number of chains must be from 1 to 64", contains: "not 0" },
+        Refused { starts: "--chains: the number of chains must be from 1 to 64", contains: "not 0" },
     ),
     (
         "too many chains",
         &["run", "-", "--chains", "65"],
         NORMAL,
-        Refused { starts: "the number of chains", contains: "not 65" },
+        Refused { starts: "--chains: the number of chains", contains: "not 65" },
     ),
     (
         "too few draws",
         &["run", "-", "--draws", "3"],
         NORMAL,
-        Refused { starts: "the number of draws per chain must be from 4", contains: "not 3" },
+        Refused { starts: "--draws: the number of draws per chain must be from 4", contains: "not 3" },
     ),
     (
         "a billion draws",
         &["run", "-", "--draws", "1000000000"],
         NORMAL,
-        Refused { starts: "the number of draws per chain", contains: "10000000" },
+        Refused { starts: "--draws: the number of draws per chain", contains: "10000000" },
     ),
     (
         "draws beyond memory",
         &["run", "-", "--draws", "9000000", "--chains", "64", "--tune", "none"],
         NORMAL,
         Refused { starts: "this run would need about", contains: "raise --max-memory" },
+    ),
+    // --- memory: refused before anything is allocated, naming the part and the option ---
+    (
+        "trial windows beyond memory",
+        &["run", "-", "--window", "100000"],
+        WIDE,
+        Refused { starts: "this run would need about", contains: "the trial windows alone would take 6.0 GiB" },
+    ),
+    (
+        "trial windows beyond memory: the remedy",
+        &["run", "-", "--window", "100000"],
+        WIDE,
+        Refused { starts: "this run would need about", contains: "lower --window, or raise --max-memory" },
+    ),
+    (
+        "a surrogate of 10,000 trials",
+        &["run", "-", "--trials", "10000"],
+        NORMAL,
+        Refused { starts: "this run would need about", contains: "the surrogate alone would take 4.5 GiB" },
+    ),
+    (
+        "wide draws beyond memory",
+        &["run", "-", "--tune", "none", "--draws", "1000000"],
+        WIDE,
+        Refused { starts: "this run would need about", contains: "lower --draws" },
+    ),
+    (
+        "adaptive Metropolis of 2,000 coordinates on 64 chains",
+        &["run", "-", "--tune", "am", "--chains", "64"],
+        WIDE,
+        Refused { starts: "this run would need about", contains: "the adaptation alone would take" },
+    ),
+    (
+        "a million pilot sweeps of 2,000 coordinates within a small limit",
+        &["run", "-", "--pilot", "1000000", "--max-memory", "0.1"],
+        WIDE,
+        Refused { starts: "this run would need about 0.", contains: "more than --max-memory 0.1" },
+    ),
+    (
+        "a comparison keeps the chosen run's draws",
+        &["run", "-", "--draws", "5000000", "--chains", "16", "--compare"],
+        NORMAL,
+        Refused { starts: "this run would need about", contains: "lower --draws" },
     ),
     (
         "non-numeric draws",
@@ -65,79 +110,79 @@ const CASES: &[(&str, &[&str], &str, Expect)] = &[
         "zero scale",
         &["run", "-", "--scale", "0"],
         NORMAL,
-        Refused { starts: "the random-walk scale must be a positive number", contains: "not 0" },
+        Refused { starts: "--scale: the random-walk scale must be a positive number", contains: "not 0" },
     ),
     (
         "negative scale",
         &["run", "-", "--scale", "-1"],
         NORMAL,
-        Refused { starts: "the random-walk scale must be a positive number", contains: "not -1" },
+        Refused { starts: "--scale: the random-walk scale must be a positive number", contains: "not -1" },
     ),
     (
         "NaN scale",
         &["run", "-", "--scale", "NaN"],
         NORMAL,
-        Refused { starts: "the random-walk scale must be a positive number", contains: "NaN" },
+        Refused { starts: "--scale: the random-walk scale must be a positive number", contains: "NaN" },
     ),
     (
         "infinite scale",
         &["run", "-", "--scale", "inf"],
         NORMAL,
-        Refused { starts: "the random-walk scale must be a positive number", contains: "inf" },
+        Refused { starts: "--scale: the random-walk scale must be a positive number", contains: "inf" },
     ),
     (
         "blend above 1",
         &["run", "-", "--blend", "1.5"],
         NORMAL,
-        Refused { starts: "the blend must be between 0 and 1", contains: "1.5" },
+        Refused { starts: "--blend: the blend must be between 0 and 1", contains: "1.5" },
     ),
     (
         "zero width",
         &["run", "-", "--sampler", "slice", "--width", "0"],
         NORMAL,
-        Refused { starts: "the slice width must be a positive number", contains: "not 0" },
+        Refused { starts: "--width: the slice width must be a positive number", contains: "not 0" },
     ),
     (
         "zero step-out",
         &["run", "-", "--sampler", "slice", "--stepout", "0"],
         NORMAL,
-        Refused { starts: "the step-out limit must be a whole number from 1 to 10000", contains: "not 0" },
+        Refused { starts: "--stepout: the step-out limit must be a whole number from 1 to 10000", contains: "not 0" },
     ),
     (
         "huge step-out",
         &["run", "-", "--sampler", "slice", "--stepout", "20000"],
         NORMAL,
-        Refused { starts: "the step-out limit", contains: "not 20000" },
+        Refused { starts: "--stepout: the step-out limit", contains: "not 20000" },
     ),
     (
         "width for a random walk",
         &["run", "-", "--width", "2"],
         NORMAL,
-        Refused { starts: "--width does not apply to --sampler rwm", contains: "" },
+        Refused { starts: "--width: a setting of the slice sampler, not of random-walk Metropolis", contains: "" },
     ),
     (
         "scale for a slice sampler",
         &["run", "-", "--sampler", "slice", "--scale", "2"],
         NORMAL,
-        Refused { starts: "--scale does not apply to --sampler slice", contains: "" },
+        Refused { starts: "--scale: a setting of random-walk Metropolis, not of the slice sampler", contains: "" },
     ),
     (
         "Robbins–Monro for slice",
         &["run", "-", "--sampler", "slice", "--tune", "rm"],
         NORMAL,
-        Refused { starts: "Robbins–Monro and adaptive Metropolis adapt a random walk", contains: "" },
+        Refused { starts: "--tune: Robbins–Monro and adaptive Metropolis adapt a random walk", contains: "" },
     ),
     (
         "no trials",
         &["run", "-", "--trials", "0"],
         NORMAL,
-        Refused { starts: "the number of tuning trials must be from 1", contains: "not 0" },
+        Refused { starts: "--trials: the number of tuning trials must be from 1", contains: "not 0" },
     ),
     (
         "tiny trial window",
         &["run", "-", "--window", "2"],
         NORMAL,
-        Refused { starts: "the steps per tuning trial must be from 4", contains: "not 2" },
+        Refused { starts: "--window: the steps per tuning trial must be from 4", contains: "not 2" },
     ),
     (
         "negative seed",
@@ -149,7 +194,7 @@ const CASES: &[(&str, &[&str], &str, Expect)] = &[
         "seed beyond 2^53",
         &["run", "-", "--seed", "9007199254740992"],
         NORMAL,
-        Refused { starts: "the seed must be at most 2^53 − 1", contains: "9007199254740992" },
+        Refused { starts: "--seed: the seed must be at most 2^53 − 1", contains: "9007199254740992" },
     ),
     (
         "zero memory limit",
@@ -161,13 +206,13 @@ const CASES: &[(&str, &[&str], &str, Expect)] = &[
         "huge pilot",
         &["run", "-", "--pilot", "2000000"],
         NORMAL,
-        Refused { starts: "the number of pilot sweeps must be from 0 to 1000000", contains: "" },
+        Refused { starts: "--pilot: the number of pilot sweeps must be from 0 to 1000000", contains: "" },
     ),
     (
         "huge warm-up",
         &["run", "-", "--warmup", "200000000"],
         NORMAL,
-        Refused { starts: "the number of warm-up steps must be from 0", contains: "" },
+        Refused { starts: "--warmup: the number of warm-up steps must be from 0", contains: "" },
     ),
     (
         "unknown flag",

@@ -3,8 +3,10 @@
 
 mod bad_inputs;
 mod commands;
+mod diagnose;
 mod golden;
 mod malformed;
+mod plan;
 
 use std::io::Write;
 use std::path::{Path, PathBuf};

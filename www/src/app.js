@@ -4,13 +4,17 @@
 // browser on every change, and nothing the user typed is replaced without a way back.
 
 import 'uplot/dist/uPlot.min.css';
+import { setupDiagnose } from './diagnose.js';
+import { download, h } from './dom.js';
 import { createEditor, replaceText, showDiagnostic } from './editor.js';
-import { checkModel, comparisonConfigs, defaultConfig, makeLink, readLink, startEngine } from './engine.js';
+import { checkModel, defaultSettings, makeLink, readLink, startEngine } from './engine.js';
 import { markCurrentExample, showCheck, showEngineFailure, showGallery, showOutline } from './panels.js';
 import { progressView } from './progress.js';
 import { METHOD_NAMES, showResults } from './results.js';
 import { prepareWorkers, startJob } from './runner.js';
-import { buildConfig, formFromConfig, initialValues, randomSeed, readForm, writeForm } from './settings.js';
+import {
+  formFromLink, initialValues, planFromConfig, planFromForm, randomSeed, readForm, writeForm,
+} from './settings.js';
 import {
   loadForm, loadReplacedText, loadText, saveForm, saveReplacedText, saveText,
 } from './storage.js';
@@ -27,12 +31,6 @@ const OWN_SETTING_NOTES = {
   am: 'Adaptive Metropolis starts from your setting.',
   none: 'The chains sample with exactly this setting.',
 };
-
-function h(tag, props = {}, ...children) {
-  const element = Object.assign(document.createElement(tag), props);
-  element.append(...children.filter((c) => c !== null && c !== undefined));
-  return element;
-}
 
 async function loadExamples() {
   const response = await fetch(new URL('./examples.json', import.meta.url));
@@ -57,16 +55,6 @@ function trackChromeHeights() {
   observer.observe(document.querySelector('.masthead'));
   observer.observe(document.querySelector('.caution'));
   observer.observe(document.getElementById('link-banner'));
-}
-
-/** Save `text` as a file called `name`. */
-function download(name, text, type) {
-  const url = URL.createObjectURL(new Blob([text], { type }));
-  const link = h('a', { href: url, download: name });
-  document.body.append(link);
-  link.click();
-  link.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 10_000);
 }
 
 async function main() {
@@ -99,7 +87,7 @@ async function main() {
   let job = null;
   let shownResults = null;
   let finishedRun = null;
-  // A configuration from a link that the form cannot show in full; used until the form changes.
+  // A run from a link that the form cannot show in full; used until the form changes.
   let pinned = null;
   let link = null;
 
@@ -179,7 +167,7 @@ async function main() {
 
   // The form: how it looks follows what is chosen; every change is kept.
   const ownNote = $('own-note');
-  const defaultsFor = (kind) => defaultConfig(text(), kind, 'none', 0);
+  const defaultsFor = (kind) => defaultSettings(text(), kind).settings;
   const syncForm = () => {
     const values = readForm(form);
     for (const field of form.querySelectorAll('[data-kernel]')) {
@@ -196,7 +184,7 @@ async function main() {
     let defaults = null;
     try {
       // The text may have changed since the last check; then there are no defaults to show yet.
-      defaults = lastCheck?.ok ? defaultsFor(values.kernel).settings.settings : null;
+      defaults = lastCheck?.ok ? defaultsFor(values.kernel) : null;
     } catch {
       defaults = null;
     }
@@ -206,7 +194,12 @@ async function main() {
     ownNote.textContent = values.own ? OWN_SETTING_NOTES[method] : '';
   };
 
-  const currentConfig = () => pinned ?? buildConfig(text(), readForm(form));
+  // The runs to make: those of the form's options, or of a pinned link's run; built by the engine
+  // as `mixwell run` builds them from its flags.
+  const currentPlan = () => {
+    const values = readForm(form);
+    return pinned ? planFromConfig(text(), pinned, values.compare) : planFromForm(text(), values);
+  };
 
   // What can be done now: start, share, or why not.
   const refresh = () => {
@@ -214,7 +207,7 @@ async function main() {
     link = null;
     const running = job !== null;
     cancelButton.disabled = !running;
-    let config = null;
+    let plan = null;
     let problem = null;
     let linkProblem = null;
     if (!engineReady) problem = 'The engine is starting…';
@@ -224,11 +217,11 @@ async function main() {
       problem = `The model has an error at line ${from.line}, column ${from.column} (see under the editor); fix it to run.`;
     } else {
       try {
-        config = currentConfig();
-        link = makeLink(text(), config, location.origin + location.pathname);
+        plan = currentPlan();
+        link = makeLink(text(), plan.config, location.origin + location.pathname);
       } catch (error) {
-        // A configuration the engine refuses cannot run; a model too large for a link still can.
-        if (config === null) problem = error.message;
+        // A run the engine refuses cannot start; a model too large for a link still can run.
+        if (plan === null) problem = error.message;
         else linkProblem = error.message;
       }
     }
@@ -254,7 +247,7 @@ async function main() {
     if (event.target.name === 'own' && event.target.checked && lastCheck?.ok) {
       // Start the user's own setting from the default, so there is something to edit.
       try {
-        const defaults = defaultsFor(readForm(form).kernel).settings.settings;
+        const defaults = defaultsFor(readForm(form).kernel);
         for (const [key, value] of Object.entries(defaults)) {
           if (form.elements[key].value.trim() === '') form.elements[key].value = String(value);
         }
@@ -291,15 +284,13 @@ async function main() {
     else download('mixwell-report.json', finishedRun.json, 'application/json');
   };
 
-  const start = async (source, config) => {
+  const start = async (source, { runs, chosen }) => {
     if (job) return;
-    const compare = form.elements.compare.checked;
-    const configs = compare ? comparisonConfigs(config) : [config];
-    const progress = progressView($('progress'), configs);
+    const progress = progressView($('progress'), runs);
     runStatus.textContent = '';
     delete runStatus.dataset.state;
     resultsArea.classList.add('stale');
-    job = startJob({ source, config, compare, onProgress: (p) => progress.update(p) });
+    job = startJob({ source, runs, chosen, onProgress: (p) => progress.update(p) });
     refresh();
     let outcome = null;
     let seconds = 0;
@@ -345,7 +336,7 @@ async function main() {
     clearTimeout(timer);
     check();
     if (startButton.disabled) return;
-    start(text(), currentConfig());
+    start(text(), currentPlan());
   });
   cancelButton.addEventListener('click', () => {
     if (!job) return;
@@ -390,7 +381,7 @@ async function main() {
       clearTimeout(timer);
       check();
     }
-    const { values, fits } = formFromConfig(shared.run, (kind) => defaultConfig(shared.model, kind, 'none', 0));
+    const { values, fits } = formFromLink(shared);
     writeForm(form, { compare: false, ...values });
     saveForm(readForm(form));
     pinned = fits ? null : shared.run;
@@ -434,6 +425,7 @@ async function main() {
     return;
   }
   engineReady = true;
+  setupDiagnose({ card: $('draws-card'), resultsArea });
   writeForm(form, { ...initialValues(), ...(loadForm() ?? {}) });
   check();
   openLink();

@@ -1,8 +1,8 @@
-// The engine on the page's main thread (quick work: checking while typing, building run
-// configurations, links) and a client for the engine's module Web Workers (runs).
+// The engine on the page's main thread (quick work: checking while typing, planning runs from the
+// form, links) and a client for the engine's module Web Workers (runs).
 
 import init, {
-  check_model, comparison_configs, default_config, describe_settings, make_link, read_link, version,
+  check_model, default_settings, describe_settings, make_link, plan_run, read_link, standard_options, version,
 } from '../pkg/mixwell.js';
 
 let ready = null;
@@ -38,13 +38,20 @@ export async function engineModule() {
  * `expected`, `help`, `from`/`to` ({ line, column }, 1-based) and `start`/`end` (UTF-16 offsets).
  */
 export const checkModel = (source) => check_model(source);
-/** The run configuration the command line would use, for kernel `kind` and method `tune`. */
-export const defaultConfig = (source, kind, tune, seed) => default_config(source, kind, tune, seed);
-/** The configurations of every tuning method that applies to `config`, same budget. */
-export const comparisonConfigs = (config) => comparison_configs(config);
+/**
+ * The runs a request makes for model `source` — `{ options, compare }` (run options, as
+ * `mixwell run` has flags) or `{ config, compare }` — built as the command line builds them:
+ * `{ ok: true, config, runs, chosen }` or `{ ok: false, option, message }`, `option` naming the
+ * option at fault. Runs too large for a page are refused the same way.
+ */
+export const planRun = (source, request) => plan_run(source, request);
+/** The run options a form shows before any change. */
+export const standardOptions = () => standard_options();
+/** The default settings of kernel `kind` ('rwm' or 'slice') for `source`: `{ kind, settings }`. */
+export const defaultSettings = (source, kind) => default_settings(source, kind);
 /** The link to `page` that carries `source` and `config`. */
 export const makeLink = (source, config, page) => make_link(source, config, page);
-/** What a link carries, `{ model, run }`. */
+/** What a link carries, `{ model, run, options }` (options: null when the form cannot hold the run). */
 export const readLink = (link) => read_link(link);
 /** A kernel's settings in words. */
 export const describeSettings = (settings) => describe_settings(settings);

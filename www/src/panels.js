@@ -1,19 +1,8 @@
 // The panels beside the editor, drawn from plain data: the check result under the editor, the
 // list of what the model declares, and the example gallery.
 
+import { h, present } from './dom.js';
 import { describe } from './editor.js';
-
-/** Build an element: `h('td', { className: 'x' }, 'text', child, …)`. Text is never parsed as HTML. */
-function h(tag, props = {}, ...children) {
-  const element = Object.assign(document.createElement(tag), props);
-  element.append(...present(children));
-  return element;
-}
-
-/** The children that are there (a `cond ? child : null` leaves nothing). */
-function present(children) {
-  return children.filter((child) => child !== null && child !== undefined);
-}
 
 function plural(count, one, many) {
   return `${count === 0 ? 'no' : count} ${count === 1 ? one : many}`;

@@ -4,16 +4,12 @@
 // button that saves it as a PNG.
 
 import uPlot from 'uplot';
+import { h } from './dom.js';
 import { axisPosition, axisValue, bestGridPoint, histograms, runningBest, surrogateSlice } from './draws.js';
+import { num } from './format.js';
 import { INK, chainColour, chainDash, rampColour, withAlpha } from './palette.js';
 
 const FONT = '12px system-ui, -apple-system, "Segoe UI", "DejaVu Sans", sans-serif';
-
-function h(tag, props = {}, ...children) {
-  const element = Object.assign(document.createElement(tag), props);
-  element.append(...children.filter((c) => c !== null && c !== undefined));
-  return element;
-}
 
 /** An axis in the page's style; `extra` overrides. */
 function axis(label, extra = {}) {
@@ -359,9 +355,9 @@ export function surrogateMap(host, { surrogate, axes, trials, frozen }) {
     }),
   });
   const scale = h('div', { className: 'ramp' },
-    h('span', { className: 'ramp-end' }, lo.toPrecision(3)),
+    h('span', { className: 'ramp-end' }, num(lo, 3)),
     h('span', { className: 'ramp-bar', ariaHidden: 'true' }),
-    h('span', { className: 'ramp-end' }, hi.toPrecision(3)));
+    h('span', { className: 'ramp-end' }, num(hi, 3)));
   scale.title = 'Mean score: colour from lowest to highest';
   plot.figure.querySelector('.plot-note').before(scale);
   return plot;
@@ -378,7 +374,7 @@ export function surrogateSlicePlot(host, { surrogate, axes, axisIndex }) {
     title: `Surrogate along ${axes[axisIndex].name}`,
     name: `surrogate-${axes[axisIndex].name}`,
     height: 220,
-    note: `${other.name} held at ${Number(heldAt.toPrecision(3))}, through the best point; band: mean ± 2 sd.`,
+    note: `${other.name} held at ${num(heldAt, 3)}, through the best point; band: mean ± 2 sd.`,
     build: () => ({
       opts: {
         ...baseOpts,

@@ -1,13 +1,8 @@
 // The progress of a run: one bar per phase the run goes through (pilot, tuning or adapting,
 // warm-up, sampling), each said in words too, and which method of a comparison is running.
 
+import { h } from './dom.js';
 import { METHOD_NAMES } from './results.js';
-
-function h(tag, props = {}, ...children) {
-  const element = Object.assign(document.createElement(tag), props);
-  element.append(...children.filter((c) => c !== null && c !== undefined));
-  return element;
-}
 
 /** Milliseconds between redraws of the bars while a run goes on. */
 const REDRAW_MS = 125;

@@ -1,35 +1,26 @@
 // The results of a run, drawn from its report and draws: what ran, warnings in plain words, the
 // summary table, per-chain statistics, plots of the draws and of the tuning, the comparison of
-// methods, and exports. All text goes in as text (never parsed as HTML).
+// methods, and exports. Draws judged from files (diagnose.js) get the same view without the
+// sampler's parts. All text goes in as text (never parsed as HTML).
 
+import { h } from './dom.js';
 import { describeSettings } from './engine.js';
 import { columnOf, axisPosition } from './draws.js';
+import { fixed, num } from './format.js';
 import {
   acfPlot, chainLegend, densityPlot, historyPlot, pairPlot, surrogateMap, surrogateSlicePlot, tracePlot,
 } from './plots.js';
-
-function h(tag, props = {}, ...children) {
-  const element = Object.assign(document.createElement(tag), props);
-  element.append(...children.filter((c) => c !== null && c !== undefined && c !== false));
-  return element;
-}
 
 export const METHOD_NAMES = {
   bo: 'Bayesian optimisation', rm: 'Robbins–Monro', am: 'Adaptive Metropolis', none: 'No tuning (the setting as given)',
 };
 
-const SCORE_NAMES = { 'ess-per-eval': 'log of effective draws per evaluation', acf: 'minus the mean absolute autocorrelation' };
+const SCORE_NAMES = {
+  'ess-per-eval': 'log of effective draws per evaluation', 'jump-per-eval': 'log of mean squared jump per evaluation',
+  acf: 'minus the mean absolute autocorrelation',
+};
 
 const count = (n) => Number(n).toLocaleString('en');
-
-/** A number as the tables show it: four significant digits, or — when it is not a number. */
-export function num(value, digits = 4) {
-  if (value === null || value === undefined || !Number.isFinite(value)) return '—';
-  if (value === 0) return '0';
-  const a = Math.abs(value);
-  if (a >= 1e6 || a < 1e-3) return value.toExponential(digits - 1);
-  return value.toPrecision(digits);
-}
 
 const whole = (value) => (Number.isFinite(value) ? count(Math.round(value)) : '—');
 
@@ -113,7 +104,11 @@ const SUMMARY_COLUMNS = [
   ['bulk_ess', 'bulk-ESS'], ['tail_ess', 'tail-ESS'], ['rhat', 'R-hat'],
 ];
 
-function summaryTable(report, grouped, onPick) {
+/**
+ * The summary table: one row per quantity of `groups` (`[{ heading, quantities }]`; a group with a
+ * heading gets a divider row), its cells written as the command line writes them.
+ */
+function summaryTable(groups, grouped, onPick) {
   const row = (q) => {
     const texts = grouped.byName.get(q.name) ?? [];
     const flags = flaggedCells(texts);
@@ -121,7 +116,7 @@ function summaryTable(report, grouped, onPick) {
       h('th', { scope: 'row', className: 'name' }, q.name, texts.length ? h('span', { className: 'flag', title: texts.join('\n') }, ' ▲') : null),
       ...SUMMARY_COLUMNS.map(([key]) => {
         const value = q[key];
-        const text = key.endsWith('ess') ? whole(value) : key === 'rhat' ? (Number.isFinite(value) ? value.toFixed(3) : '—') : num(value);
+        const text = key.endsWith('ess') ? fixed(value, 0) : key === 'rhat' ? fixed(value, 3) : num(value);
         const td = h('td', { className: 'num' }, text);
         if (flags.has(key) || flags.has('all')) td.classList.add('flagged');
         return td;
@@ -137,11 +132,10 @@ function summaryTable(report, grouped, onPick) {
     });
     return tr;
   };
-  const body = [
-    ...report.parameters.map(row),
-    report.derived.length ? h('tr', { className: 'divider' }, h('th', { colSpan: SUMMARY_COLUMNS.length + 1, scope: 'rowgroup' }, 'derived quantities')) : null,
-    ...report.derived.map(row),
-  ];
+  const body = groups.flatMap(({ heading, quantities }) => [
+    heading && quantities.length ? h('tr', { className: 'divider' }, h('th', { colSpan: SUMMARY_COLUMNS.length + 1, scope: 'rowgroup' }, heading)) : null,
+    ...quantities.map(row),
+  ]);
   return h('section', { className: 'block summary', ariaLabelledBy: 'summary-heading' },
     h('h3', { id: 'summary-heading' }, 'Summary'),
     h('div', { className: 'table-scroll' },
@@ -205,23 +199,114 @@ function frozenPoint(report) {
   return [axisPosition(a, values[a.name]), axisPosition(b, values[b.name])];
 }
 
+// The view shown in each results container, so that a new one (of a run, or of files) clears the
+// plots of the one before.
+const shown = new WeakMap();
+
+function takeOver(container, kind) {
+  shown.get(container)?.destroy();
+  container.dataset.view = kind;
+  const plots = [];
+  let gone = false;
+  const view = {
+    plots,
+    destroy() {
+      if (gone) return;
+      gone = true;
+      for (const p of plots) p?.destroy();
+      if (shown.get(container) === view) {
+        shown.delete(container);
+        container.replaceChildren();
+      }
+    },
+  };
+  shown.set(container, view);
+  return view;
+}
+
+function exportButton(kind, label, onExport) {
+  const b = h('button', { type: 'button', className: 'quiet', id: `export-${kind}` }, label);
+  b.addEventListener('click', () => onExport(kind));
+  return b;
+}
+
+/** The title, the lines that say what was judged, and the export buttons. */
+function resultsHead(title, lines, exports) {
+  return h('div', { className: 'results-head' },
+    h('div', { className: 'results-title' },
+      h('h2', { id: 'results-heading' }, title),
+      ...lines.map((line) => h('p', { className: 'run-line' }, line))),
+    h('div', { className: 'exports' }, ...exports));
+}
+
+/**
+ * The warnings, the summary table of `groups` (see summaryTable) and the plots of the draws
+ * (`finished`: `{ columns, draws }`, one Float64Array of rows per chain), appended to `container`;
+ * returns `{ destroy }` for the plots.
+ */
+function drawsSections(container, report, finished, groups) {
+  const quantities = groups.flatMap((g) => g.quantities);
+  const names = quantities.map((q) => q.name);
+  const grouped = groupWarnings(report.warnings, names);
+  const width = finished.columns.length;
+  const plotArea = h('div', { className: 'plot-grid' });
+  const pairArea = h('div', { className: 'pair-area' });
+  let current = names[0];
+  let pair = [names[0], names[1] ?? names[0]];
+  let drawn = [];
+  const column = (name) => columnOf(finished.draws, width, finished.columns.indexOf(name));
+  const quantity = (name) => quantities.find((q) => q.name === name);
+
+  const drawQuantity = () => {
+    for (const p of drawn) p?.destroy();
+    const chains = column(current);
+    drawn = [
+      tracePlot(plotArea, { name: current, chains }),
+      densityPlot(plotArea, { name: current, chains }),
+      acfPlot(plotArea, { name: current, acf: quantity(current).autocorrelation }),
+    ];
+    for (const tr of container.querySelectorAll('tr[data-quantity]')) tr.classList.toggle('picked', tr.dataset.quantity === current);
+    quantitySelect.querySelector('select').value = current;
+  };
+  let pairPlotShown = null;
+  const drawPair = () => {
+    pairPlotShown?.destroy();
+    pairPlotShown = pairPlot(pairArea, { xName: pair[0], yName: pair[1], xs: column(pair[0]), ys: column(pair[1]) });
+  };
+  const pick = (name) => {
+    current = name;
+    drawQuantity();
+  };
+  const quantitySelect = select('plot-quantity', 'Quantity', names, current, pick);
+
+  container.append(
+    warningsSection(report, grouped),
+    summaryTable(groups, grouped, pick),
+    h('section', { className: 'block draws', ariaLabelledBy: 'draws-heading' },
+      h('div', { className: 'block-head' }, h('h3', { id: 'draws-heading' }, 'Draws'), quantitySelect, chainLegend(report.chains)),
+      plotArea,
+      names.length > 1
+        ? h('div', { className: 'pair-block' },
+          h('div', { className: 'block-head' }, h('h4', {}, 'Two quantities together'),
+            select('pair-x', 'across', names, pair[0], (v) => { pair[0] = v; drawPair(); }),
+            select('pair-y', 'up', names, pair[1], (v) => { pair[1] = v; drawPair(); })),
+          pairArea)
+        : null));
+  drawQuantity();
+  if (names.length > 1) drawPair();
+  return { destroy: () => { for (const p of drawn) p?.destroy(); pairPlotShown?.destroy(); } };
+}
+
 /**
  * Draw the results into `container`. `info`: `{ cancelled, method, completedRuns, runs, seconds,
  * onExport(kind) }`. Returns `{ destroy }` to clear the plots before the next results.
  */
 export function showResults(container, finished, info) {
   const { report } = finished;
-  const plots = [];
-  const names = [...report.parameters, ...report.derived].map((q) => q.name);
-  const grouped = groupWarnings(report.warnings, names);
+  const view = takeOver(container, 'run');
+  const { plots } = view;
   const width = finished.columns.length;
   const kept = finished.draws.length && width ? finished.draws[0].length / width : 0;
-
-  const exportButton = (kind, label) => {
-    const b = h('button', { type: 'button', className: 'quiet', id: `export-${kind}` }, label);
-    b.addEventListener('click', () => info.onExport(kind));
-    return b;
-  };
 
   const stoppedNote = info.cancelled
     ? h('p', { className: 'stopped', role: 'status' },
@@ -233,64 +318,16 @@ export function showResults(container, finished, info) {
     : null;
 
   container.replaceChildren(...[
-    h('div', { className: 'results-head' },
-      h('div', { className: 'results-title' },
-        h('h2', { id: 'results-heading' }, report.complete ? 'Results' : 'Results — incomplete run'),
-        ...runLines(report, finished, info).map((line) => h('p', { className: 'run-line' }, line))),
-      h('div', { className: 'exports' }, exportButton('csv', 'Draws as CSV'), exportButton('json', 'Report as JSON'))),
+    resultsHead(report.complete ? 'Results' : 'Results — incomplete run', runLines(report, finished, info),
+      [exportButton('csv', 'Draws as CSV', info.onExport), exportButton('json', 'Report as JSON', info.onExport)]),
     stoppedNote,
     h('p', { className: 'report-caution' }, h('strong', {}, 'Read with care. '), report.caution),
   ].filter(Boolean));
 
   if (kept > 0) {
-    const plotArea = h('div', { className: 'plot-grid' });
-    const pairArea = h('div', { className: 'pair-area' });
-    let current = names[0];
-    let pair = [names[0], names[1] ?? names[0]];
-    let drawn = [];
-    const columnIndex = (name) => finished.columns.indexOf(name);
-    const column = (name) => columnOf(finished.draws, width, columnIndex(name));
-    const quantity = (name) => [...report.parameters, ...report.derived].find((q) => q.name === name);
-
-    const drawQuantity = () => {
-      for (const p of drawn) p?.destroy();
-      const chains = column(current);
-      drawn = [
-        tracePlot(plotArea, { name: current, chains }),
-        densityPlot(plotArea, { name: current, chains }),
-        acfPlot(plotArea, { name: current, acf: quantity(current).autocorrelation }),
-      ];
-      for (const tr of container.querySelectorAll('tr[data-quantity]')) tr.classList.toggle('picked', tr.dataset.quantity === current);
-      quantitySelect.querySelector('select').value = current;
-    };
-    let pairPlotShown = null;
-    const drawPair = () => {
-      pairPlotShown?.destroy();
-      pairPlotShown = pairPlot(pairArea, { xName: pair[0], yName: pair[1], xs: column(pair[0]), ys: column(pair[1]) });
-    };
-    const pick = (name) => {
-      current = name;
-      drawQuantity();
-    };
-    const quantitySelect = select('plot-quantity', 'Quantity', names, current, pick);
-
-    container.append(
-      warningsSection(report, grouped),
-      summaryTable(report, grouped, pick),
-      h('section', { className: 'block draws', ariaLabelledBy: 'draws-heading' },
-        h('div', { className: 'block-head' }, h('h3', { id: 'draws-heading' }, 'Draws'), quantitySelect, chainLegend(report.chains)),
-        plotArea,
-        names.length > 1
-          ? h('div', { className: 'pair-block' },
-            h('div', { className: 'block-head' }, h('h4', {}, 'Two quantities together'),
-              select('pair-x', 'across', names, pair[0], (v) => { pair[0] = v; drawPair(); }),
-              select('pair-y', 'up', names, pair[1], (v) => { pair[1] = v; drawPair(); })),
-            pairArea)
-          : null),
-      chainTable(report));
-    drawQuantity();
-    if (names.length > 1) drawPair();
-    plots.push({ destroy: () => { for (const p of drawn) p?.destroy(); pairPlotShown?.destroy(); } });
+    const groups = [{ heading: null, quantities: report.parameters }, { heading: 'derived quantities', quantities: report.derived }];
+    plots.push(drawsSections(container, report, finished, groups));
+    container.append(chainTable(report));
   } else {
     // Without draws the report's diagnostics say nothing (and its acceptance of zero proposals
     // is not a finding), so none are shown.
@@ -321,10 +358,43 @@ export function showResults(container, finished, info) {
 
   if (report.comparison) container.append(comparisonTable(report));
 
-  return {
-    destroy() {
-      for (const p of plots) p?.destroy();
-      container.replaceChildren();
-    },
-  };
+  return view;
+}
+
+/** Where each chain of draws judged from files came from. */
+function sourcesTable(report) {
+  return h('section', { className: 'block chains', ariaLabelledBy: 'chains-heading' },
+    h('h3', { id: 'chains-heading' }, 'Chains'),
+    h('table', { className: 'chain-table' },
+      h('thead', {}, h('tr', {}, h('th', { scope: 'col' }, 'chain'), h('th', { scope: 'col' }, 'file'),
+        h('th', { scope: 'col' }, 'label'), h('th', { scope: 'col', className: 'num' }, 'draws in the file'))),
+      h('tbody', {}, ...report.chain_sources.map((c) => h('tr', {},
+        h('th', { scope: 'row' }, String(c.chain)),
+        h('td', {}, c.file),
+        h('td', {}, c.label ?? '—'),
+        h('td', { className: 'num' }, count(c.draws)))))));
+}
+
+/**
+ * Draw the report of draws judged from files into `container`: `diagnosed` is what the engine's
+ * diagnose_files returns (`{ report, json, columns, draws }`); `info`: `{ seconds, onExport(kind) }`.
+ * The same view as a run's, without its sampler, tuning and acceptance. Returns `{ destroy }`.
+ */
+export function showDiagnosis(container, diagnosed, info) {
+  const { report } = diagnosed;
+  const view = takeOver(container, 'draws');
+  const files = report.files.length === 1 ? report.files[0] : `${report.files.length} files (${report.files.join(', ')})`;
+  const how = report.layout === 'chain-column' ? 'told apart by their chain column' : 'one chain per file';
+  const lines = [
+    `Draws from ${files}, read in this browser — nothing was sent anywhere`,
+    `${report.chains} chain${report.chains === 1 ? '' : 's'} × ${count(report.draws)} draws, ${how}`
+      + ` · ${report.quantities.length} quantit${report.quantities.length === 1 ? 'y' : 'ies'}`
+      + (info.seconds ? ` · ${info.seconds.toFixed(1)} s` : ''),
+  ];
+  container.replaceChildren(
+    resultsHead('Draws judged', lines, [exportButton('json', 'Report as JSON', info.onExport)]),
+    h('p', { className: 'report-caution' }, h('strong', {}, 'Read with care. '), report.caution));
+  view.plots.push(drawsSections(container, report, diagnosed, [{ heading: null, quantities: report.quantities }]));
+  container.append(sourcesTable(report));
+  return view;
 }

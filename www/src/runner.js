@@ -6,7 +6,7 @@
 // slower), so a run starts at once and at full speed; only workers that were stopped or that
 // failed are replaced.
 
-import { Stopped, comparisonConfigs, engineModule, startWorker } from './engine.js';
+import { Stopped, engineModule, startWorker } from './engine.js';
 
 /** Autocorrelation is reported to this lag, as `mixwell run` does by default (its --lags). */
 export const LAGS = 20;
@@ -71,13 +71,13 @@ function dismissAll() {
 }
 
 /**
- * Start a job: one run of `config`, or with `compare`, one run per tuning method that applies
- * (comparison_configs), one after another, the chosen method's report then carrying the
- * comparison. `onProgress({ run, runs, method, phase, done, total })` is called after every task.
- * Returns `{ done, cancel }`; `done` resolves to `{ finished, cancelled, interrupted, method, completedRuns,
+ * Start a job: the `runs` of a plan (see plan_run), one after another — one run, or one per tuning
+ * method of a comparison, whose `chosen` run's report then carries the comparison.
+ * `onProgress({ run, runs, method, phase, done, total })` is called after every task. Returns
+ * `{ done, cancel }`; `done` resolves to `{ finished, cancelled, interrupted, method, completedRuns,
  * runs }`, where `finished` is what RunEngine.finish returns (with the comparison attached).
  */
-export function startJob({ source, config, compare, onProgress }) {
+export function startJob({ source, runs: configs, chosen, onProgress }) {
   let cancelled = false;
   let planner = null;
   let chainWorkers = [];
@@ -141,13 +141,12 @@ export function startJob({ source, config, compare, onProgress }) {
     return { run, finished, seconds, interrupted };
   }
 
+  const compare = configs.length > 1;
+
   async function drive() {
-    const configs = compare ? comparisonConfigs(config) : [config];
     // Workers stopped by an earlier cancel are made again, and the engine loaded in them.
     await prepareWorkers();
     ({ planner, chains: chainWorkers } = crew);
-    const chosen = configs.findIndex((c) => c.tuning.method === config.tuning.method);
-    if (chosen < 0) throw new Error('the chosen tuning method is not among the methods compared');
     const rows = [];
     let primary = null;
     for (let i = 0; i < configs.length; i++) {
@@ -161,6 +160,11 @@ export function startJob({ source, config, compare, onProgress }) {
       }
       rows.push(outcome.finished.comparison);
       if (i === chosen) primary = outcome;
+      else {
+        // Only the chosen run's draws are kept: the others' plans go at once.
+        await planner.request('close', { run: outcome.run });
+        opened.delete(outcome.run);
+      }
     }
     if (compare) {
       const attached = await planner.request('attach', { run: primary.run, rows });
@@ -168,7 +172,7 @@ export function startJob({ source, config, compare, onProgress }) {
       primary.finished.json = attached.json;
     }
     return {
-      finished: primary.finished, cancelled: false, method: config.tuning.method,
+      finished: primary.finished, cancelled: false, method: configs[chosen].tuning.method,
       completedRuns: configs.length, runs: configs.length,
     };
   }

@@ -1,14 +1,23 @@
-// The run form: what the user chose, as plain strings (kept in this browser), and the run
-// configuration built from it — the engine's default configuration for the model, overridden by
-// what was given, as `mixwell run` builds its own from its options.
+// The run form: what the user chose, as plain strings (kept in this browser), and the run options
+// they stand for. The form is read here only as far as a message must name its field ("Draws:
+// write a whole number"); what the options mean — defaults, ranges, what applies to which kernel,
+// the runs of a comparison — is the engine's, the same function `mixwell run` turns its flags
+// into a run with (crate/src/plan).
 
-import { defaultConfig } from './engine.js';
+import { planRun, standardOptions } from './engine.js';
 
 /** The form's fields and their kinds. */
 const FIELDS = {
   kernel: 'radio', tuning: 'select', own: 'check', scale: 'text', blend: 'text', width: 'text',
   stepout: 'text', chains: 'text', draws: 'text', warmup: 'text', seed: 'text', compare: 'check',
   trials: 'text', window: 'text', score: 'select', freeze: 'select', pilot: 'text',
+};
+
+/** The form's label of each run option, for messages that name the field at fault. */
+const LABELS = {
+  sampler: 'Kernel', scale: 'Scale', blend: 'Blend', width: 'Width', stepout: 'Step-out limit', tune: 'Tuning',
+  score: 'Judge a trial by', trials: 'Trials', window: 'Steps per trial', freeze: 'After tuning, sample with', chains: 'Chains',
+  warmup: 'Warm-up', draws: 'Draws', pilot: 'Pilot sweeps', seed: 'Seed', compare: 'Compare',
 };
 
 /** Largest seed: 2^53 − 1, so that it travels through JavaScript numbers and JSON exactly. */
@@ -51,45 +60,34 @@ export function writeForm(form, values) {
 }
 
 /**
- * The form values that reproduce `config` (from a link), and whether the form can hold it all.
- * `defaults(kind)` is the default configuration for the link's model (it throws when the model
- * does not read).
+ * The form values that stand for run `options` (as the engine gives them, e.g. for a link):
+ * an option left out shows as the form's default, which means the same.
  */
-export function formFromConfig(config, defaults) {
-  const { settings, tuning } = config;
-  const values = {
-    chains: String(config.chains), draws: String(config.draws), warmup: String(config.warmup),
-    seed: String(config.seed), pilot: String(config.pilot), tuning: tuning.method,
+function formFromOptions(options) {
+  const standard = standardOptions();
+  const text = (value) => (value === undefined || value === null ? '' : String(value));
+  const given = (name) => options[name] ?? standard[name];
+  const own = ['scale', 'blend', 'width', 'stepout'].some((name) => options[name] !== undefined && options[name] !== null);
+  return {
+    kernel: given('sampler'), tuning: given('tune'), own,
+    scale: text(options.scale), blend: text(options.blend), width: text(options.width), stepout: text(options.stepout),
+    chains: text(given('chains')), draws: text(given('draws')), warmup: text(given('warmup')), pilot: text(given('pilot')),
+    seed: text(options.seed), trials: text(given('trials')), window: text(given('window')),
+    score: options.score ?? '', freeze: given('freeze'),
   };
-  let fits = settings.kind === 'rwm' || settings.kind === 'slice';
-  if (fits) {
-    values.kernel = settings.kind;
-    // A model that does not read has no defaults to compare with: show the setting as given.
-    let standard = null;
-    try {
-      standard = defaults(settings.kind).settings.settings;
-    } catch {
-      standard = null;
-    }
-    const own = standard === null || Object.keys(standard).some((key) => settings.settings[key] !== standard[key]);
-    values.own = own;
-    for (const [key, value] of Object.entries(settings.settings)) values[key] = own ? String(value) : '';
-  }
-  if (tuning.method === 'bo') {
-    Object.assign(values, {
-      trials: String(tuning.trials), window: String(tuning.window), score: tuning.score, freeze: tuning.freeze,
-    });
-  } else if (tuning.method === 'rm' || tuning.method === 'am') {
-    // The form holds a budget as trials × steps per trial; keep a budget that does not factor so.
-    const window = Number(defaults('rwm').tuning.window);
-    if (tuning.steps % window === 0) {
-      Object.assign(values, { trials: String(tuning.steps / window), window: String(window) });
-    } else {
-      Object.assign(values, { trials: String(tuning.steps), window: '1' });
-      fits = false;
-    }
-  }
-  return { values, fits };
+}
+
+/**
+ * The form values that reproduce a link's run, and whether the form can hold it all. `shared` is
+ * what the engine read from the link: `{ model, run, options }`, where `options` is null for a
+ * run no options can ask for (a mixture of kernels); the form then shows what it can.
+ */
+export function formFromLink({ run, options }) {
+  if (options) return { values: formFromOptions(options), fits: true };
+  const values = formFromOptions({
+    tune: run.tuning.method, chains: run.chains, draws: run.draws, warmup: run.warmup, pilot: run.pilot, seed: run.seed,
+  });
+  return { values, fits: false };
 }
 
 /** A whole number written in a field, or an error that names the field. */
@@ -109,47 +107,51 @@ function decimal(text, what) {
   return value;
 }
 
-/**
- * The run configuration for `source` from the form `values`; throws an Error whose message
- * names the field at fault. Ranges are the engine's to judge (it says what is allowed).
- */
-export function buildConfig(source, values) {
-  const seed = whole(values.seed, 'Seed');
-  if (seed > MAX_SEED) throw new Error(`Seed: at most ${MAX_SEED}`);
-  const config = defaultConfig(source, values.kernel, values.tuning, seed);
+/** The run options the form `values` stand for; throws an Error whose message names the field. */
+export function optionsFromForm(values) {
+  const options = {
+    sampler: values.kernel, tune: values.tuning, freeze: values.freeze,
+    chains: whole(values.chains, LABELS.chains), draws: whole(values.draws, LABELS.draws),
+    warmup: whole(values.warmup, LABELS.warmup), pilot: whole(values.pilot, LABELS.pilot),
+    seed: whole(values.seed, LABELS.seed), trials: whole(values.trials, LABELS.trials),
+    window: whole(values.window, LABELS.window),
+  };
+  // An empty choice of score means the kernel's own default, as when `--score` is not given.
+  if (values.score) options.score = values.score;
   if (values.own) {
-    const given = config.settings.settings;
     if (values.kernel === 'rwm') {
-      given.scale = decimal(values.scale, 'Scale');
-      given.blend = decimal(values.blend, 'Blend');
+      options.scale = decimal(values.scale, LABELS.scale);
+      options.blend = decimal(values.blend, LABELS.blend);
     } else {
-      given.width = decimal(values.width, 'Width');
-      given.stepout = whole(values.stepout, 'Step-out limit');
+      options.width = decimal(values.width, LABELS.width);
+      options.stepout = whole(values.stepout, LABELS.stepout);
     }
   }
-  const trials = whole(values.trials, 'Trials');
-  const window = whole(values.window, 'Steps per trial');
-  const tuning = config.tuning;
-  if (tuning.method === 'bo') Object.assign(tuning, { trials, window, score: values.score, freeze: values.freeze });
-  else if (tuning.method === 'rm' || tuning.method === 'am') tuning.steps = trials * window;
-  config.chains = whole(values.chains, 'Chains');
-  config.draws = whole(values.draws, 'Draws');
-  config.warmup = whole(values.warmup, 'Warm-up');
-  config.pilot = whole(values.pilot, 'Pilot sweeps');
-  return config;
+  return options;
 }
 
-// Any model that reads will do for the defaults that do not depend on the model.
-const PROBE = 'x : real\ndensity = normal(x; 0, 1)\n';
+/** The engine's plan, or an Error whose message names the form's field at fault. */
+function planned(answer) {
+  if (answer.ok) return answer;
+  const label = LABELS[answer.option];
+  const message = answer.message.charAt(0).toUpperCase() + answer.message.slice(1);
+  throw new Error(label ? `${label}: ${answer.message}` : message);
+}
+
+/**
+ * The runs the form `values` ask for with model `source`: `{ config, runs, chosen }` (see
+ * plan_run); throws an Error whose message names the field at fault.
+ */
+export function planFromForm(source, values) {
+  return planned(planRun(source, { options: optionsFromForm(values), compare: Boolean(values.compare) }));
+}
+
+/** The runs for `config` (a link's run the form cannot hold), compared or not. */
+export function planFromConfig(source, config, compare) {
+  return planned(planRun(source, { config, compare: Boolean(compare) }));
+}
 
 /** The form's first values: the engine's defaults and a fresh seed. */
 export function initialValues() {
-  const config = defaultConfig(PROBE, 'rwm', 'bo', 0);
-  return {
-    kernel: 'rwm', tuning: 'bo', own: false, scale: '', blend: '', width: '', stepout: '',
-    chains: String(config.chains), draws: String(config.draws), warmup: String(config.warmup),
-    seed: String(randomSeed()), compare: false, trials: String(config.tuning.trials),
-    window: String(config.tuning.window), score: config.tuning.score, freeze: config.tuning.freeze,
-    pilot: String(config.pilot),
-  };
+  return { ...formFromOptions(standardOptions()), seed: String(randomSeed()), compare: false };
 }

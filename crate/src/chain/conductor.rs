@@ -1,12 +1,15 @@
-//! The plan of a run, one phase after another, for all chains at once: pilot, tuning, freezing
-//! the kernel, warm-up, sampling. The conductor hands out [`Task`]s and collects [`Outcome`]s;
-//! whoever drives it (threads natively, Web Workers in the page) only carries messages, so a
-//! run's draws do not depend on how it is driven.
+//! A run carried out, one phase after another, for all chains at once: pilot, tuning, freezing
+//! the kernel, warm-up, sampling (the [`Phase`]s). The conductor hands out [`Task`]s and collects
+//! [`Outcome`]s; whoever drives it (threads natively, Web Workers in the page) only carries
+//! messages, so a run's draws do not depend on how it is driven. What to run comes from a
+//! [`RunConfig`] (see `plan`); the conductor decides nothing that the configuration does not say.
 
-use super::{Outcome, Record, Task};
+use super::{Moments, Outcome, Record, Task};
 use crate::kernel::{Geometry, Scheme, Settings};
-use crate::tune::policy::{Axis, BoConfig, Space, Surrogate, Trial, Tuner};
-use crate::tune::score::Score;
+use crate::plan::memory::MAX_TASK_VALUES;
+use crate::plan::{Method, Phase, RunConfig, Shape, Tuning};
+use crate::tune::policy::{Axis, Space, Surrogate, Trial, Tuner};
+use crate::tune::score::{Score, Window};
 use serde::{Deserialize, Serialize};
 
 /// Steps per task while adapting, warming up and sampling, unless the driver sets another size:
@@ -14,154 +17,44 @@ use serde::{Deserialize, Serialize};
 /// into tasks never changes the draws (a chain simply continues).
 pub const CHUNK: usize = 250;
 
-/// How the kernel's settings are chosen before sampling.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(tag = "method", rename_all = "snake_case")]
-pub enum Tuning {
-    /// Keep the given settings.
-    None,
-    /// Bayesian optimisation of the settings.
-    Bo(BoConfig),
-    /// Robbins–Monro scaling of a random walk for `steps` steps.
-    Rm { steps: usize },
-    /// Adaptive Metropolis for `steps` steps.
-    Am { steps: usize },
-}
-
-impl Tuning {
-    /// Every method that applies to `settings`' kind of kernel, with the budget of `bo`: the
-    /// given setting untouched, Bayesian optimisation, and for a random walk also Robbins–Monro
-    /// and adaptive Metropolis for as many steps as the optimisation's trials take.
-    pub fn alternatives(settings: &Settings, bo: &BoConfig) -> Vec<Tuning> {
-        let steps = bo.trials * bo.window;
-        let mut methods = vec![Tuning::None, Tuning::Bo(bo.clone())];
-        if matches!(settings, Settings::RandomWalk { .. }) {
-            methods.extend([Tuning::Rm { steps }, Tuning::Am { steps }]);
-        }
-        methods
-    }
-
-    /// The name of a method as written (`"bo"`, …), as a static string.
-    pub fn name_of(name: &str) -> Option<&'static str> {
-        ["none", "bo", "rm", "am"].into_iter().find(|n| *n == name)
-    }
-
-    pub fn name(&self) -> &'static str {
-        match self {
-            Tuning::None => "none",
-            Tuning::Bo(_) => "bo",
-            Tuning::Rm { .. } => "rm",
-            Tuning::Am { .. } => "am",
-        }
-    }
-}
-
-/// Everything that fixes a run's draws.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct RunConfig {
-    pub chains: usize,
-    pub warmup: usize,
-    pub draws: usize,
-    pub seed: u64,
-    /// Pilot sweeps per chain.
-    pub pilot: usize,
-    /// The kernel to run, or, when tuning, the kind of kernel to tune.
-    pub settings: Settings,
-    pub tuning: Tuning,
-}
-
-/// Most chains a run may have.
-pub const MAX_CHAINS: usize = 64;
-/// Fewest draws per chain: split R-hat needs two halves of at least two.
-pub const MIN_DRAWS: usize = 4;
-/// Most draws, warm-up steps, pilot sweeps and adaptation steps per chain.
-pub const MAX_DRAWS: usize = 10_000_000;
-pub const MAX_WARMUP: usize = 100_000_000;
-pub const MAX_PILOT: usize = 1_000_000;
-pub const MAX_ADAPT_STEPS: usize = 100_000_000;
-/// Largest seed: 2⁵³ − 1, so that a seed travels through JavaScript and JSON exactly.
-pub const MAX_SEED: u64 = (1 << 53) - 1;
-/// Most tuning trials, and fewest and most steps in one trial window.
-pub const MAX_TRIALS: usize = 10_000;
-pub const WINDOW_RANGE: (usize, usize) = (4, 100_000);
-
-impl RunConfig {
-    /// The usual run for a model with `dim` coordinates: four chains of 1,000 draws after 1,000
-    /// warm-up steps and a 200-sweep pilot, the default settings of kernel `kind` (`"rwm"` or
-    /// `"slice"`), tuned by `tune` (`"bo"`, `"rm"`, `"am"` or `"none"`) with the default budget.
-    pub fn default_for(kind: &str, tune: &str, dim: usize, seed: u64) -> Result<RunConfig, String> {
-        if kind != "rwm" && kind != "slice" {
-            return Err(format!("unknown sampler `{kind}`: use rwm or slice"));
-        }
-        let settings = Settings::default_for(kind, dim);
-        let bo = BoConfig { score: Score::default_for(&settings), ..BoConfig::default() };
-        let steps = bo.trials * bo.window;
-        let tuning = match tune {
-            "bo" => Tuning::Bo(bo),
-            "rm" => Tuning::Rm { steps },
-            "am" => Tuning::Am { steps },
-            "none" => Tuning::None,
-            other => return Err(format!("unknown tuning method `{other}`: use bo, rm, am or none")),
-        };
-        let config = RunConfig { chains: 4, warmup: 1000, draws: 1000, seed, pilot: 200, settings, tuning };
-        config.validate()?;
-        Ok(config)
-    }
-
-    /// Why this configuration cannot run, if it cannot.
-    pub fn validate(&self) -> Result<(), String> {
-        if self.seed > MAX_SEED {
-            return Err(format!("the seed must be at most 2^53 − 1 = {MAX_SEED}, not {}", self.seed));
-        }
-        let within = |what: &str, value: usize, lo: usize, hi: usize| {
-            if (lo..=hi).contains(&value) {
-                Ok(())
-            } else {
-                Err(format!("{what} must be from {lo} to {hi}, not {value}"))
-            }
-        };
-        within("the number of chains", self.chains, 1, MAX_CHAINS)?;
-        within("the number of draws per chain", self.draws, MIN_DRAWS, MAX_DRAWS)?;
-        within("the number of warm-up steps", self.warmup, 0, MAX_WARMUP)?;
-        within("the number of pilot sweeps", self.pilot, 0, MAX_PILOT)?;
-        self.settings.validate()?;
-        if matches!(self.settings, Settings::Mixture { .. }) && self.tuning != Tuning::None {
-            return Err("a mixture of kernels cannot be tuned; give a random walk or a slice sampler".into());
-        }
-        match &self.tuning {
-            Tuning::None => Ok(()),
-            Tuning::Bo(bo) => {
-                within("the number of tuning trials", bo.trials, 1, MAX_TRIALS)?;
-                within("the steps per tuning trial", bo.window, WINDOW_RANGE.0, WINDOW_RANGE.1)
-            }
-            Tuning::Rm { steps } | Tuning::Am { steps } => {
-                if !matches!(self.settings, Settings::RandomWalk { .. }) {
-                    return Err("Robbins–Monro and adaptive Metropolis adapt a random walk, not a slice sampler".into());
-                }
-                within("the number of adaptation steps", *steps, 1, MAX_ADAPT_STEPS)
-            }
-        }
-    }
-
-    /// Bytes the draws will take while being summarised (held as rows and once more as columns),
-    /// for a model with `columns` values per draw.
-    pub fn draw_bytes(&self, columns: usize) -> f64 {
-        2.0 * 8.0 * self.draws as f64 * self.chains as f64 * columns as f64
-    }
-}
-
 /// Which phase the run is in and how far along.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Progress {
-    pub phase: &'static str,
+    pub phase: Phase,
     pub done: usize,
     pub total: usize,
+}
+
+/// Density evaluations spent in each phase, all chains: the run's cost.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize)]
+pub struct Spent {
+    pub pilot: u64,
+    /// Tuning trials or adaptation.
+    pub tuning: u64,
+    pub warmup: u64,
+    pub sampling: u64,
+}
+
+impl Spent {
+    fn charge(&mut self, phase: Phase, evaluations: u64) {
+        match phase {
+            Phase::Pilot => self.pilot += evaluations,
+            Phase::Tuning | Phase::Adapting => self.tuning += evaluations,
+            Phase::WarmUp => self.warmup += evaluations,
+            Phase::Sampling | Phase::Done => self.sampling += evaluations,
+        }
+    }
+
+    /// Everything before sampling: pilot, tuning and warm-up.
+    pub fn before_sampling(&self) -> u64 {
+        self.pilot + self.tuning + self.warmup
+    }
 }
 
 /// What the tuning phase did, for the report.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct TuningRecord {
-    pub method: &'static str,
+    pub method: Method,
     pub score: Option<Score>,
     /// Steps per chain per trial (Bayesian optimisation only).
     pub window: Option<usize>,
@@ -184,8 +77,8 @@ pub struct Collected {
     pub draws: Vec<Vec<f64>>,
     /// Per chain, sampling phase only.
     pub stats: Vec<ChainStats>,
-    /// Density evaluations spent before sampling (pilot, tuning and warm-up), all chains.
-    pub evaluations_before_sampling: u64,
+    /// Density evaluations spent in each phase.
+    pub spent: Spent,
     /// False when the run was stopped early; the draws are then those made so far.
     pub complete: bool,
 }
@@ -197,8 +90,9 @@ pub struct ChainStats {
     pub moves: u64,
 }
 
+/// Where the conductor is: a [`Phase`], cut into the steps its tasks take.
 #[derive(Clone, Copy, Debug, PartialEq)]
-enum Phase {
+enum At {
     Pilot,
     /// Bayesian optimisation: set up the next trial's kernel, then run it.
     TrialSetup,
@@ -212,55 +106,80 @@ enum Phase {
     Done,
 }
 
+impl At {
+    fn phase(self) -> Phase {
+        match self {
+            At::Pilot => Phase::Pilot,
+            At::TrialSetup | At::TrialRun => Phase::Tuning,
+            At::AdaptSetup | At::Adapt(_) => Phase::Adapting,
+            At::Freeze | At::Warmup(_) => Phase::WarmUp,
+            At::Sample(_) => Phase::Sampling,
+            At::Done => Phase::Done,
+        }
+    }
+}
+
 pub struct Conductor {
     config: RunConfig,
     dim: usize,
-    phase: Phase,
+    at: At,
     geometry: Geometry,
     settings: Settings,
     tuner: Option<Tuner>,
-    tuning_evaluations: u64,
     draws: Vec<Vec<f64>>,
     stats: Vec<ChainStats>,
-    evaluations_before_sampling: u64,
+    spent: Spent,
     /// Steps asked for by the task in flight.
     in_flight: usize,
     chunk: usize,
+    /// Values per draw.
+    columns: usize,
+    /// Most steps in one sampling task, so that a chain's recorded rows stay small.
+    max_sample_steps: usize,
 }
 
 impl Conductor {
-    pub fn new(config: RunConfig, dim: usize) -> Self {
+    /// The conductor of a run of `config` (already validated, see `plan`) on a model of `shape`.
+    pub fn new(config: RunConfig, shape: Shape) -> Self {
         let chains = config.chains;
-        let tuner = match &config.tuning {
-            Tuning::Bo(bo) => Some(Tuner::new(bo.clone(), Space::for_settings(&config.settings, dim), config.seed)),
+        let dim = shape.dim;
+        let tuner = match (&config.tuning, config.kind()) {
+            (Tuning::Bo(bo), Some(kind)) => Some(Tuner::new(bo.clone(), Space::for_kind(kind, dim), config.seed)),
             _ => None,
         };
         let mut conductor = Conductor {
             dim,
-            phase: Phase::Pilot,
+            at: At::Pilot,
             geometry: Geometry::unit(dim),
             settings: config.settings.clone(),
             tuner,
-            tuning_evaluations: 0,
             draws: vec![Vec::new(); chains],
             stats: vec![ChainStats::default(); chains],
-            evaluations_before_sampling: 0,
+            spent: Spent::default(),
             in_flight: 0,
             chunk: CHUNK,
+            columns: shape.columns,
+            max_sample_steps: (MAX_TASK_VALUES / shape.columns.max(1)).max(1),
             config,
         };
         if conductor.config.pilot == 0 {
-            conductor.phase = conductor.after_pilot();
+            conductor.at = conductor.after_pilot();
         }
         conductor
     }
 
-    fn after_pilot(&self) -> Phase {
+    fn after_pilot(&self) -> At {
         match self.config.tuning {
-            Tuning::None => Phase::Freeze,
-            Tuning::Bo(_) => Phase::TrialSetup,
-            Tuning::Rm { .. } | Tuning::Am { .. } => Phase::AdaptSetup,
+            Tuning::None => At::Freeze,
+            Tuning::Bo(_) => At::TrialSetup,
+            Tuning::Rm { .. } | Tuning::Am { .. } => At::AdaptSetup,
         }
+    }
+
+    /// The stopping rule of sampling: whether `done` draws per chain are enough. Today a fixed
+    /// number, the configuration's; a rule that reads the draws so far belongs here.
+    fn sampled_enough(&self, done: usize) -> bool {
+        done >= self.config.draws
     }
 
     fn adapt_steps(&self) -> (usize, Scheme) {
@@ -283,33 +202,36 @@ impl Conductor {
         let configure =
             |settings: Settings, geometry: &Geometry| Task::Configure { settings, geometry: geometry.clone() };
         let task = loop {
-            break match self.phase {
-                Phase::Pilot => Task::Pilot { sweeps: self.config.pilot },
-                Phase::TrialSetup => match self.tuner.as_mut().and_then(Tuner::propose) {
+            break match self.at {
+                At::Pilot => Task::Pilot { sweeps: self.config.pilot },
+                At::TrialSetup => match self.tuner.as_mut().and_then(Tuner::propose) {
                     Some(settings) => configure(settings, &self.geometry),
                     None => {
-                        self.phase = Phase::Freeze;
+                        self.at = At::Freeze;
                         continue;
                     }
                 },
-                Phase::TrialRun => {
+                At::TrialRun => {
                     let window = self.tuner.as_ref().map_or(0, |t| t.config().window);
                     Task::Run { steps: window, record: Record::Unconstrained }
                 }
-                Phase::AdaptSetup => configure(self.config.settings.clone(), &self.geometry),
-                Phase::Adapt(done) => {
+                At::AdaptSetup => configure(self.config.settings.clone(), &self.geometry),
+                At::Adapt(done) => {
                     let (total, scheme) = self.adapt_steps();
                     Task::Adapt { scheme, steps: chunk(done, total) }
                 }
-                Phase::Freeze => {
+                At::Freeze => {
                     if let Some(tuner) = self.tuner.as_mut() {
                         self.settings = tuner.freeze();
                     }
                     configure(self.settings.clone(), &self.geometry)
                 }
-                Phase::Warmup(done) => Task::Run { steps: chunk(done, self.config.warmup), record: Record::Nothing },
-                Phase::Sample(done) => Task::Run { steps: chunk(done, self.config.draws), record: Record::Draws },
-                Phase::Done => return None,
+                At::Warmup(done) => Task::Run { steps: chunk(done, self.config.warmup), record: Record::Nothing },
+                At::Sample(done) => Task::Run {
+                    steps: chunk(done, self.config.draws).min(self.max_sample_steps),
+                    record: Record::Draws,
+                },
+                At::Done => return None,
             };
         };
         self.in_flight = match &task {
@@ -323,60 +245,65 @@ impl Conductor {
     pub fn absorb(&mut self, mut outcomes: Vec<Outcome>) {
         outcomes.sort_by_key(|o| o.chain);
         let steps = self.in_flight;
-        let spent: u64 = outcomes.iter().map(|o| o.evaluations).sum();
-        if !matches!(self.phase, Phase::Sample(_)) {
-            self.evaluations_before_sampling += spent;
-        }
-        if matches!(self.phase, Phase::TrialRun | Phase::Adapt(_)) {
-            self.tuning_evaluations += spent;
-        }
-        self.phase = match self.phase {
-            Phase::Pilot => {
-                let rows: Vec<&[f64]> = outcomes.iter().map(|o| o.rows.as_slice()).collect();
-                self.geometry = pooled_geometry(&rows, self.dim);
+        self.spent.charge(self.at.phase(), outcomes.iter().map(|o| o.evaluations).sum());
+        self.at = match self.at {
+            At::Pilot => {
+                let answers: Vec<&[f64]> = outcomes.iter().map(|o| o.rows.as_slice()).collect();
+                self.geometry = Moments::pooled(&answers, self.dim).geometry();
                 self.after_pilot()
             }
-            Phase::TrialSetup => Phase::TrialRun,
-            Phase::TrialRun => {
+            At::TrialSetup => At::TrialRun,
+            At::TrialRun => {
                 if let Some(tuner) = self.tuner.as_mut() {
-                    tuner.observe(&outcomes, &self.geometry);
+                    let rows: Vec<&[f64]> = outcomes.iter().map(|o| o.rows.as_slice()).collect();
+                    let window = Window {
+                        rows: &rows,
+                        evaluations: outcomes.iter().map(|o| o.evaluations).sum(),
+                        steps: outcomes.iter().map(|o| o.steps).sum(),
+                    };
+                    tuner.observe(&window, &self.geometry);
                 }
-                Phase::TrialSetup
+                At::TrialSetup
             }
-            Phase::AdaptSetup => Phase::Adapt(0),
-            Phase::Adapt(done) => {
+            At::AdaptSetup => At::Adapt(0),
+            At::Adapt(done) => {
                 let (total, scheme) = self.adapt_steps();
                 if done + steps < total {
-                    Phase::Adapt(done + steps)
+                    At::Adapt(done + steps)
                 } else {
                     self.freeze_adapted(scheme, &outcomes);
-                    Phase::Freeze
+                    At::Freeze
                 }
             }
-            Phase::Freeze => self.after(0, self.config.warmup, Phase::Warmup),
-            Phase::Warmup(done) => self.after(done + steps, self.config.warmup, Phase::Warmup),
-            Phase::Sample(done) => {
+            At::Freeze => self.after_warmup(0),
+            At::Warmup(done) => self.after_warmup(done + steps),
+            At::Sample(done) => {
                 for o in outcomes {
+                    if done == 0 {
+                        // Room for every draw at once: growing by doubling would hold up to
+                        // three times the draws while the last copy is made.
+                        self.draws[o.chain].reserve_exact(self.config.draws * self.columns);
+                    }
                     self.draws[o.chain].extend_from_slice(&o.rows);
                     let s = &mut self.stats[o.chain];
                     s.evaluations += o.evaluations;
                     s.proposals += o.proposals;
                     s.moves += o.moves;
                 }
-                if done + steps < self.config.draws { Phase::Sample(done + steps) } else { Phase::Done }
+                if self.sampled_enough(done + steps) { At::Done } else { At::Sample(done + steps) }
             }
-            Phase::Done => Phase::Done,
+            At::Done => At::Done,
         };
     }
 
-    /// Warm-up until `done` reaches `total`, then sampling.
-    fn after(&self, done: usize, total: usize, within: fn(usize) -> Phase) -> Phase {
-        if done < total {
-            within(done)
-        } else if self.config.draws == 0 {
-            Phase::Done
+    /// Warm-up until `done` reaches its length, then sampling.
+    fn after_warmup(&self, done: usize) -> At {
+        if done < self.config.warmup {
+            At::Warmup(done)
+        } else if self.sampled_enough(0) {
+            At::Done
         } else {
-            Phase::Sample(0)
+            At::Sample(0)
         }
     }
 
@@ -406,21 +333,21 @@ impl Conductor {
 
     pub fn progress(&self) -> Progress {
         let trials = self.tuner.as_ref().map_or((0, 0), |t| (t.trials().len(), t.config().trials));
-        let (phase, done, total) = match self.phase {
-            Phase::Pilot => ("pilot", 0, self.config.pilot),
-            Phase::TrialSetup | Phase::TrialRun => ("tuning", trials.0, trials.1),
-            Phase::AdaptSetup => ("adapting", 0, self.adapt_steps().0),
-            Phase::Adapt(done) => ("adapting", done, self.adapt_steps().0),
-            Phase::Freeze => ("warm-up", 0, self.config.warmup),
-            Phase::Warmup(done) => ("warm-up", done, self.config.warmup),
-            Phase::Sample(done) => ("sampling", done, self.config.draws),
-            Phase::Done => ("done", self.config.draws, self.config.draws),
+        let (done, total) = match self.at {
+            At::Pilot => (0, self.config.pilot),
+            At::TrialSetup | At::TrialRun => trials,
+            At::AdaptSetup => (0, self.adapt_steps().0),
+            At::Adapt(done) => (done, self.adapt_steps().0),
+            At::Freeze => (0, self.config.warmup),
+            At::Warmup(done) => (done, self.config.warmup),
+            At::Sample(done) => (done, self.config.draws),
+            At::Done => (self.config.draws, self.config.draws),
         };
-        Progress { phase, done, total }
+        Progress { phase: self.at.phase(), done, total }
     }
 
     pub fn is_done(&self) -> bool {
-        self.phase == Phase::Done
+        self.at == At::Done
     }
 
     /// The draws so far (complete once [`Conductor::is_done`]).
@@ -428,65 +355,83 @@ impl Conductor {
         let tuning = match &self.config.tuning {
             Tuning::None => None,
             method => Some(TuningRecord {
-                method: method.name(),
+                method: method.method(),
                 score: self.tuner.as_ref().map(|t| t.config().score),
                 window: self.tuner.as_ref().map(|t| t.config().window),
                 axes: self.tuner.as_ref().map(|t| t.space().axes()),
                 trials: self.tuner.as_ref().map(|t| t.trials().to_vec()).unwrap_or_default(),
                 surrogate: self.tuner.as_ref().and_then(Tuner::surrogate),
-                evaluations: self.tuning_evaluations,
+                evaluations: self.spent.tuning,
             }),
         };
         Collected {
-            complete: self.phase == Phase::Done,
+            complete: self.at == At::Done,
             config: self.config,
             settings: self.settings,
             geometry: self.geometry,
             tuning,
             draws: self.draws,
             stats: self.stats,
-            evaluations_before_sampling: self.evaluations_before_sampling,
+            spent: self.spent,
         }
     }
 }
 
-/// Mean and covariance of all chains' pilot draws pooled (summed in chain order, so the result
-/// is the same however the chains were run). A coordinate that never moved gets unit variance.
-pub fn pooled_geometry(chains: &[&[f64]], d: usize) -> Geometry {
-    let rows: Vec<&[f64]> = chains.iter().flat_map(|c| c.chunks_exact(d.max(1))).collect();
-    let n = rows.len();
-    if n < 2 || d == 0 {
-        return Geometry::unit(d);
-    }
-    let mut mean = vec![0.0; d];
-    for row in &rows {
-        for (m, x) in mean.iter_mut().zip(*row) {
-            *m += x / n as f64;
-        }
-    }
-    let mut covariance = vec![0.0; d * d];
-    for row in &rows {
-        for i in 0..d {
-            let di = row[i] - mean[i];
-            for j in 0..=i {
-                covariance[i * d + j] += di * (row[j] - mean[j]) / (n - 1) as f64;
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::chain::Chain;
+    use crate::plan::{Options, Phase};
+    use crate::tape::Tape;
+
+    /// Drive a run on this thread, noting the phase after every task.
+    fn drive(options: Options) -> (Vec<Phase>, Collected, u64) {
+        let model =
+            crate::model::check("mu : real\nsigma : positive\ndensity = normal(mu; 0, 1) * exponential(sigma; 1)\n")
+                .expect("reads");
+        let tape = Tape::new(&model);
+        let config = Options { seed: Some(3), ..options }.resolve(tape.dim()).expect("valid");
+        let mut chains: Vec<Chain> = (0..config.chains).map(|i| Chain::new(&tape, 3, i).expect("starts")).collect();
+        let mut conductor = Conductor::new(config, Shape::of(&tape));
+        let mut phases = vec![conductor.progress().phase];
+        let mut spent = 0;
+        while let Some(task) = conductor.next_task() {
+            let outcomes: Vec<Outcome> = chains.iter_mut().rev().map(|c| c.perform(&tape, &task)).collect();
+            spent += outcomes.iter().map(|o| o.evaluations).sum::<u64>();
+            conductor.absorb(outcomes);
+            if phases.last() != Some(&conductor.progress().phase) {
+                phases.push(conductor.progress().phase);
             }
         }
+        (phases, conductor.finish(), spent)
     }
-    for i in 0..d {
-        for j in 0..i {
-            covariance[j * d + i] = covariance[i * d + j];
+
+    #[test]
+    fn a_run_goes_through_its_phases_in_order_and_charges_every_evaluation_to_one() {
+        let small =
+            Options { chains: Some(2), draws: Some(20), warmup: Some(10), pilot: Some(20), ..Options::default() };
+        let cases = [
+            (
+                Options { trials: Some(3), window: Some(10), ..small.clone() },
+                vec![Phase::Pilot, Phase::Tuning, Phase::WarmUp, Phase::Sampling, Phase::Done],
+            ),
+            (
+                Options { tune: Some(Method::Am), trials: Some(2), window: Some(10), pilot: Some(0), ..small.clone() },
+                vec![Phase::Adapting, Phase::WarmUp, Phase::Sampling, Phase::Done],
+            ),
+            (
+                Options { tune: Some(Method::None), warmup: Some(0), ..small },
+                vec![Phase::Pilot, Phase::WarmUp, Phase::Sampling, Phase::Done],
+            ),
+        ];
+        for (options, expected) in cases {
+            let (phases, collected, spent) = drive(options.clone());
+            assert_eq!(phases, expected, "{options:?}");
+            let s = collected.spent;
+            assert_eq!(s.before_sampling() + s.sampling, spent, "{options:?}: {s:?}");
+            assert_eq!(s.sampling, collected.stats.iter().map(|c| c.evaluations).sum::<u64>());
+            assert_eq!(collected.tuning.map_or(0, |t| t.evaluations), s.tuning);
+            assert!(collected.complete && collected.draws.iter().all(|d| d.len() == 20 * 2), "{options:?}");
         }
     }
-    for i in 0..d {
-        let v = covariance[i * d + i];
-        if !(v.is_finite() && v > 0.0) {
-            for j in 0..d {
-                covariance[i * d + j] = 0.0;
-                covariance[j * d + i] = 0.0;
-            }
-            covariance[i * d + i] = 1.0;
-        }
-    }
-    Geometry { mean, covariance }
 }

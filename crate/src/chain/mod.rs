@@ -5,8 +5,11 @@
 //! threads natively or by one Web Worker per chain in the browser, with identical draws.
 
 pub mod conductor;
+pub mod moments;
 #[cfg(not(target_arch = "wasm32"))]
 pub mod threads;
+
+pub use moments::Moments;
 
 use crate::kernel::{Adapter, Geometry, Kernel, Scheme, Settings, State};
 use crate::rng::Stream;
@@ -23,8 +26,9 @@ pub const START_ATTEMPTS: usize = 100;
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(tag = "task", rename_all = "snake_case")]
 pub enum Task {
-    /// Run the scale-finding pilot: slice sweeps with widths learned as it goes. Returns the
-    /// unconstrained draws of its second half (never reported as posterior draws).
+    /// Run the scale-finding pilot: slice sweeps with widths learned as it goes. Answers with
+    /// the running moments of its second half's unconstrained draws ([`Moments::to_rows`]);
+    /// the draws themselves are not kept.
     Pilot { sweeps: usize },
     /// Use this kernel from now on.
     Configure { settings: Settings, geometry: Geometry },
@@ -148,44 +152,44 @@ impl Chain {
         }
     }
 
-    /// Slice sweeps whose widths follow the spread seen so far: the first half starts from unit
-    /// widths and re-estimates them every few sweeps; the second half runs with widths fixed at
-    /// three standard deviations of the first half, and its draws are returned.
+    /// Slice sweeps whose widths follow the spread seen so far. The first half starts from unit
+    /// widths and re-estimates them at the ends of doubling windows, each from the sweeps of that
+    /// window alone: at sweep n (for n = h, h/2, h/4, … down to 10, where h is half the sweeps)
+    /// from sweeps n/2 to n, the later half of what has been seen. The second half runs with
+    /// widths fixed at three standard deviations of the first half's last window, and its running
+    /// moments are returned. Memory stays a few rows and one covariance, whatever the sweeps.
     fn pilot(&mut self, tape: &Tape, sweeps: usize) -> Vec<f64> {
         let d = tape.dim();
         let first = sweeps / 2;
-        let mut geometry = Geometry::unit(d);
-        let mut seen: Vec<f64> = Vec::with_capacity(first * d);
-        let mut kernel = Kernel::new(&PILOT_SLICE, &geometry);
+        let mut ends: Vec<usize> =
+            std::iter::successors(Some(first), |n| Some(n / 2)).take_while(|&n| n >= PILOT_FIRST_WINDOW).collect();
+        ends.reverse();
+        let mut ends = ends.into_iter().peekable();
+        let mut window = Moments::diagonal(d);
+        let mut kernel = Kernel::new(&PILOT_SLICE, &Geometry::unit(d));
         for sweep in 0..first {
             kernel.step(tape, &mut self.state, &mut self.rng);
-            seen.extend_from_slice(&self.state.theta);
-            if sweep >= 9 && (sweep + 1) % 10 == 0 {
-                geometry = spread(&seen[(seen.len() / d / 2) * d..], d);
-                kernel = Kernel::new(&PILOT_SLICE, &geometry);
+            let Some(&end) = ends.peek() else { continue };
+            if sweep >= end / 2 {
+                window.add(&self.state.theta);
+            }
+            if sweep + 1 == end {
+                kernel = Kernel::new(&PILOT_SLICE, &window.geometry());
+                window = Moments::diagonal(d);
+                ends.next();
             }
         }
-        let mut rows = Vec::with_capacity((sweeps - first) * d);
+        let mut moments = Moments::full(d);
         for _ in first..sweeps {
             kernel.step(tape, &mut self.state, &mut self.rng);
-            rows.extend_from_slice(&self.state.theta);
+            moments.add(&self.state.theta);
         }
-        rows
+        moments.to_rows()
     }
 }
+
+/// The first half of the pilot first re-estimates its widths after this many sweeps or more.
+const PILOT_FIRST_WINDOW: usize = 10;
 
 /// The pilot's slice kernel: three standard deviations wide, generous stepping out.
 const PILOT_SLICE: Settings = Settings::Slice { width: 3.0, stepout: 50 };
-
-/// A diagonal geometry from rows of draws: each coordinate's sd (unit when it never moved).
-fn spread(rows: &[f64], d: usize) -> Geometry {
-    let n = (rows.len() / d.max(1)) as f64;
-    let mut g = Geometry::unit(d);
-    for i in 0..d {
-        let mean = rows.iter().skip(i).step_by(d).sum::<f64>() / n;
-        let var = rows.iter().skip(i).step_by(d).map(|x| (x - mean) * (x - mean)).sum::<f64>() / (n - 1.0).max(1.0);
-        g.mean[i] = mean;
-        g.covariance[i * d + i] = if var.is_finite() && var > 0.0 { var } else { 1.0 };
-    }
-    g
-}

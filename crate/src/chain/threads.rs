@@ -1,8 +1,9 @@
 //! Driving a run natively: one thread per chain for the whole run, each taking its tasks from a
 //! channel, so a task costs a message rather than a thread start.
 
-use super::conductor::{Collected, Conductor, Progress, RunConfig};
+use super::conductor::{Collected, Conductor, Progress};
 use super::{Chain, Outcome, Task};
+use crate::plan::{RunConfig, Shape};
 use crate::tape::Tape;
 use std::sync::{Arc, mpsc};
 use std::time::{Duration, Instant};
@@ -14,7 +15,7 @@ const TASK_TIME: Duration = Duration::from_millis(50);
 /// A whole run: start the chains, drive them to the end, hand back the draws.
 pub fn run(tape: &Tape, config: RunConfig, progress: impl FnMut(&Progress)) -> Result<Collected, String> {
     let mut chains = (0..config.chains).map(|i| Chain::new(tape, config.seed, i)).collect::<Result<Vec<_>, _>>()?;
-    let mut conductor = Conductor::new(config, tape.dim());
+    let mut conductor = Conductor::new(config, Shape::of(tape));
     drive(tape, &mut conductor, &mut chains, progress, || false);
     Ok(conductor.finish())
 }

@@ -1,5 +1,10 @@
 //! The command line as written: subcommands and flags, validated only for form.
 
+use crate::kernel::Kind;
+use crate::names::Named;
+use crate::plan::{Method, Options};
+use crate::tune::policy::Freeze;
+use crate::tune::score::Score;
 use clap::{Args, Parser, Subcommand};
 
 #[derive(Parser, Debug)]
@@ -19,6 +24,9 @@ pub enum Command {
     Run(RunArgs),
     /// Print a link that carries a model and a run, for the page or `mixwell run --link`.
     Link(LinkArgs),
+    /// Judge draws from CSV files made by any sampler: the same summary, diagnostics and
+    /// warnings as `run`.
+    Diagnose(super::diagnose::DiagnoseArgs),
 }
 
 #[derive(Args, Debug)]
@@ -42,12 +50,13 @@ pub struct DensityArgs {
     pub json: bool,
 }
 
-/// What fixes a run's draws; the same flags make a link.
+/// What fixes a run's draws, as written; the same flags make a link. Their meaning (defaults,
+/// ranges, what applies to what) is [`Options::resolve`]'s, not this struct's.
 #[derive(Args, Clone, Debug, Default)]
-pub struct RunOptions {
+pub struct RunFlags {
     /// The kernel: random-walk Metropolis or slice sampling [default: rwm].
-    #[arg(long, value_enum)]
-    pub sampler: Option<SamplerKind>,
+    #[arg(long, value_parser = choice::<Kind>())]
+    pub sampler: Option<Kind>,
     /// Random-walk scale, multiplying the pilot's covariance factor [default: 2.38/√d].
     #[arg(long)]
     pub scale: Option<f64>,
@@ -59,45 +68,46 @@ pub struct RunOptions {
     pub width: Option<f64>,
     /// Slice step-out limit, in widths [default: 20].
     #[arg(long)]
-    pub stepout: Option<u32>,
+    pub stepout: Option<u64>,
     /// How to choose the kernel's settings before sampling: Bayesian optimisation, Robbins–Monro
     /// acceptance targeting, adaptive Metropolis, or none [default: bo, or none when a setting
     /// such as --scale or --width is given].
-    #[arg(long, value_enum)]
-    pub tune: Option<TuneMethod>,
+    #[arg(long, value_parser = choice::<Method>())]
+    pub tune: Option<Method>,
     /// What a tuning trial is judged by [default: ess-per-eval for rwm, jump-per-eval for slice].
-    #[arg(long, value_enum)]
-    pub score: Option<ScoreKind>,
-    /// Bayesian optimisation: number of trials [default: 100].
+    #[arg(long, value_parser = choice::<Score>())]
+    pub score: Option<Score>,
+    /// Bayesian optimisation: number of trials; Robbins–Monro and adaptive Metropolis adapt for
+    /// trials × window steps [default: 100].
     #[arg(long)]
-    pub trials: Option<usize>,
+    pub trials: Option<u64>,
     /// Bayesian optimisation: steps per chain in each trial [default: 100].
     #[arg(long)]
-    pub window: Option<usize>,
+    pub window: Option<u64>,
     /// After tuning: the single best setting, or a fixed mixture of good ones [default: best].
-    #[arg(long, value_enum)]
-    pub freeze: Option<FreezeKind>,
+    #[arg(long, value_parser = choice::<Freeze>())]
+    pub freeze: Option<Freeze>,
     /// Number of chains [default: 4].
     #[arg(long)]
-    pub chains: Option<usize>,
+    pub chains: Option<u64>,
     /// Warm-up steps per chain, discarded [default: 1000].
     #[arg(long)]
-    pub warmup: Option<usize>,
+    pub warmup: Option<u64>,
     /// Draws per chain, kept [default: 1000].
     #[arg(long)]
-    pub draws: Option<usize>,
+    pub draws: Option<u64>,
     /// Pilot sweeps per chain, used only to measure the target's scale [default: 200].
     #[arg(long)]
-    pub pilot: Option<usize>,
+    pub pilot: Option<u64>,
     /// Seed for every random number of the run [default: a fresh one, which is reported].
     #[arg(long)]
     pub seed: Option<u64>,
 }
 
-impl RunOptions {
-    /// Whether any option that changes the draws was given.
-    pub fn any(&self) -> bool {
-        let RunOptions {
+impl RunFlags {
+    /// The flags as run options.
+    pub fn options(&self) -> Options {
+        let RunFlags {
             sampler,
             scale,
             blend,
@@ -113,23 +123,31 @@ impl RunOptions {
             draws,
             pilot,
             seed,
-        } = self;
-        sampler.is_some()
-            || scale.is_some()
-            || blend.is_some()
-            || width.is_some()
-            || stepout.is_some()
-            || tune.is_some()
-            || score.is_some()
-            || trials.is_some()
-            || window.is_some()
-            || freeze.is_some()
-            || chains.is_some()
-            || warmup.is_some()
-            || draws.is_some()
-            || pilot.is_some()
-            || seed.is_some()
+        } = self.clone();
+        Options {
+            sampler,
+            scale,
+            blend,
+            width,
+            stepout,
+            tune,
+            score,
+            trials,
+            window,
+            freeze,
+            chains,
+            warmup,
+            draws,
+            pilot,
+            seed,
+        }
     }
+}
+
+/// A flag whose values are the names of a closed set of choices.
+fn choice<T: Named + Send + Sync>() -> impl clap::builder::TypedValueParser<Value = T> {
+    use clap::builder::TypedValueParser as _;
+    clap::builder::PossibleValuesParser::new(T::ALL.iter().map(|c| c.name())).try_map(|name| T::from_name(&name))
 }
 
 #[derive(Args, Debug)]
@@ -139,7 +157,7 @@ pub struct RunArgs {
     #[arg(required_unless_present = "link")]
     pub model: Option<String>,
     #[command(flatten)]
-    pub options: RunOptions,
+    pub options: RunFlags,
     /// Repeat the run a link carries (made by `mixwell link` or the page's share button).
     #[arg(long, value_name = "URL", conflicts_with = "model")]
     pub link: Option<String>,
@@ -155,7 +173,8 @@ pub struct RunArgs {
     /// Write the draws to this CSV file.
     #[arg(long, value_name = "FILE")]
     pub csv: Option<String>,
-    /// Refuse runs whose draws would need more memory than this many GiB.
+    /// Refuse runs that would need more memory than this many GiB at their peak (pilot, tuning
+    /// trials, adaptation and draws together).
     #[arg(long, default_value_t = 2.0, value_name = "GIB")]
     pub max_memory: f64,
     /// No progress bar.
@@ -169,37 +188,10 @@ pub struct LinkArgs {
     /// Model file, or `-` for standard input.
     pub model: String,
     #[command(flatten)]
-    pub options: RunOptions,
+    pub options: RunFlags,
     /// The address of the page the link opens.
     #[arg(long, default_value = "http://127.0.0.1:8000/", value_name = "URL")]
     pub page: String,
-}
-
-#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
-pub enum TuneMethod {
-    Bo,
-    Rm,
-    Am,
-    None,
-}
-
-#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
-pub enum ScoreKind {
-    Acf,
-    EssPerEval,
-    JumpPerEval,
-}
-
-#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
-pub enum FreezeKind {
-    Best,
-    Mixture,
-}
-
-#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
-pub enum SamplerKind {
-    Rwm,
-    Slice,
 }
 
 pub fn parse() -> Result<Cli, clap::Error> {

@@ -1,13 +1,12 @@
 //! `mixwell link`: the link that carries a model and a run.
 
 use super::args::LinkArgs;
-use super::run::build_config;
 use super::{Failure, load};
 use crate::link::{Shared, encode};
 use crate::tape::Tape;
 
 pub fn run(args: &LinkArgs) -> Result<String, Failure> {
     let (_, text, model) = load(&args.model)?;
-    let run = build_config(&args.options, Tape::new(&model).dim())?;
+    let run = args.options.options().resolve(Tape::new(&model).dim())?;
     Ok(encode(&Shared { model: text, run }, &args.page)? + "\n")
 }

@@ -6,9 +6,11 @@
 mod args;
 mod check;
 mod density;
+mod diagnose;
 mod link;
 mod run;
 
+use std::io::Write;
 use std::process::ExitCode;
 
 /// An input problem, already worded for the user.
@@ -34,12 +36,10 @@ pub fn main() -> ExitCode {
         args::Command::Density(a) => density::run(&a),
         args::Command::Run(a) => run::run(&a),
         args::Command::Link(a) => link::run(&a),
+        args::Command::Diagnose(a) => diagnose::run(&a),
     };
     match result {
-        Ok(output) => {
-            print!("{output}");
-            ExitCode::SUCCESS
-        }
+        Ok(output) => print_out(&output),
         Err(Failure(message)) => {
             eprint!("{message}");
             if !message.ends_with('\n') {
@@ -47,6 +47,35 @@ pub fn main() -> ExitCode {
             }
             ExitCode::from(2)
         }
+    }
+}
+
+/// Write `text` to standard output. A reader that stopped early — a closed pipe, as in
+/// `mixwell run … --json - | head -1` — is not an error: it has what it wanted, so the command ends
+/// quietly with success, as other tools that write to pipes do.
+fn print_out(text: &str) -> ExitCode {
+    use std::io::Write;
+    let mut out = std::io::stdout().lock();
+    match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => ExitCode::SUCCESS,
+        Err(e) => {
+            eprintln!("cannot write to standard output: {e}");
+            ExitCode::from(2)
+        }
+    }
+}
+
+/// Write to the file `path` through `write`. A closed pipe (`--json /dev/stdout | head`) ends the command
+/// quietly with success, as [`print_out`] does: nothing is left that anyone would read.
+pub(crate) fn write_file(path: &str, write: impl FnOnce(&mut dyn Write) -> std::io::Result<()>) -> Result<(), Failure> {
+    let cannot = |e: std::io::Error| Failure(format!("cannot write `{path}`: {e}"));
+    let mut out = std::io::BufWriter::new(std::fs::File::create(path).map_err(cannot)?);
+    match write(&mut out).and_then(|()| out.flush()) {
+        Ok(()) => Ok(()),
+        // A reader that has gone (`--csv /dev/stdout | head`) is not an error of ours.
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => std::process::exit(0),
+        Err(e) => Err(cannot(e)),
     }
 }
 

@@ -1,97 +1,95 @@
 //! `mixwell run`: tune, sample, then print the summary and write the report and draws.
 
-use super::args::{FreezeKind, RunArgs, RunOptions, SamplerKind, ScoreKind, TuneMethod};
-use super::{Failure, load};
-use crate::chain::conductor::{Collected, Progress, RunConfig, Tuning};
+use super::args::RunArgs;
+use super::{Failure, load, write_file};
+use crate::chain::conductor::{Collected, Progress};
 use crate::chain::threads;
-use crate::kernel::Settings;
+use crate::names::Named;
+use crate::plan::{Estimate, Face, Phase, Plan, PlanError, RunConfig, Shape};
 use crate::report::{self, Comparison, Report};
-use crate::rng::Stream;
 use crate::tape::Tape;
-use crate::tune::policy::{BoConfig, Freeze};
-use crate::tune::score::Score;
 use std::io::IsTerminal;
 use std::time::Instant;
 
+const GIB: f64 = (1u64 << 30) as f64;
+
+impl From<PlanError> for Failure {
+    /// The message, after the flag at fault: `--chains: the number of chains must be …`.
+    fn from(error: PlanError) -> Failure {
+        match error.option {
+            Some(option) => Failure(format!("--{}: {}", option.name(), error.message)),
+            None => Failure(error.message),
+        }
+    }
+}
+
 pub fn run(args: &RunArgs) -> Result<String, Failure> {
-    let (name, tape, config) = match &args.link {
+    if !(args.max_memory.is_finite() && args.max_memory > 0.0) {
+        return Err(format!("--max-memory must be a positive number of GiB, not {}", args.max_memory).into());
+    }
+    let (name, tape, plan) = match &args.link {
         Some(link) => {
-            if args.options.any() {
+            if args.options.options().any() {
                 return Err("--link fixes the whole run: drop the other run options (--seed, --draws, …)".into());
             }
             let shared = crate::link::decode(link)?;
             let model = crate::model::check(&shared.model).map_err(|d| Failure(d.render("<link>", &shared.model)))?;
-            ("<link>".to_string(), Tape::new(&model), shared.run)
+            let tape = Tape::new(&model);
+            let plan = Plan::of_config(shared.run, tape.dim(), args.compare)?;
+            ("<link>".to_string(), tape, plan)
         }
         None => {
             let (name, _, model) = load(args.model.as_deref().unwrap_or("-"))?;
             let tape = Tape::new(&model);
-            let config = build_config(&args.options, tape.dim())?;
-            (name, tape, config)
+            let plan = Plan::new(&args.options.options(), tape.dim(), args.compare)?;
+            (name, tape, plan)
         }
     };
-    if !(args.max_memory.is_finite() && args.max_memory > 0.0) {
-        return Err(format!("--max-memory must be a positive number of GiB, not {}", args.max_memory).into());
-    }
-    let gib = config.draw_bytes(tape.columns().len()) / (1u64 << 30) as f64;
-    if gib > args.max_memory {
-        return Err(format!(
-            "this run would need about {gib:.1} GiB for its draws ({} chains × {} draws × {} values), more than \
-             --max-memory {}; raise --max-memory if you mean it",
-            config.chains,
-            config.draws,
-            tape.columns().len(),
-            args.max_memory
-        )
-        .into());
-    }
+    guard_memory(&plan, Shape::of(&tape), args.max_memory)?;
     let bar = progress_bar(args.quiet);
-    let (collected, report) = if args.compare {
-        let bo = match &config.tuning {
-            Tuning::Bo(bo) => bo.clone(),
-            _ => match build_config(&RunOptions { tune: Some(TuneMethod::Bo), ..args.options.clone() }, tape.dim())?
-                .tuning
-            {
-                Tuning::Bo(bo) => bo,
-                _ => BoConfig::default(),
-            },
-        };
-        let mut primary = None;
-        let mut rows = Vec::new();
-        for method in Tuning::alternatives(&config.settings, &bo) {
-            let name = method.name();
-            let chosen = name == config.tuning.name();
-            let (collected, seconds) = execute(&tape, RunConfig { tuning: method, ..config.clone() }, &bar)?;
-            let report = Report::new(&collected, tape.columns(), tape.dim(), args.lags);
-            rows.push(Comparison::of(name, &report, seconds));
-            if chosen {
-                primary = Some((collected, report));
-            }
-        }
-        let (collected, mut report) = primary.ok_or("--compare: the chosen method does not apply")?;
-        report.comparison = Some(rows);
-        (collected, report)
-    } else {
-        let (collected, _) = execute(&tape, config, &bar)?;
+    let compare = plan.runs.len() > 1;
+    let mut primary = None;
+    let mut rows = Vec::new();
+    for (i, config) in plan.runs.into_iter().enumerate() {
+        let method = config.tuning.method();
+        let (collected, seconds) = execute(&tape, config, &bar)?;
         let report = Report::new(&collected, tape.columns(), tape.dim(), args.lags);
-        (collected, report)
-    };
+        rows.push(Comparison::of(method, &report, seconds));
+        if i == plan.chosen {
+            primary = Some((collected, report));
+        }
+    }
     bar.finish();
+    let (collected, mut report) = primary.ok_or("the chosen run did not take place")?;
+    if compare {
+        report.comparison = Some(rows);
+    }
     if let Some(path) = &args.csv {
-        std::fs::write(path, report::csv(&collected, tape.columns()))
-            .map_err(|e| format!("cannot write `{path}`: {e}"))?;
+        write_file(path, |out| report::write_csv(&collected, tape.columns(), out))?;
     }
     let json = serde_json::to_string_pretty(&report)? + "\n";
     match args.json.as_deref() {
         Some("-") => Ok(json),
         Some(path) => {
-            std::fs::write(path, json).map_err(|e| format!("cannot write `{path}`: {e}"))?;
+            write_file(path, |out| out.write_all(json.as_bytes()))?;
             Ok(report::table(&report, &name))
         }
         None => Ok(report::table(&report, &name)),
     }
 }
 
+/// Refuse, before anything is allocated, runs whose peak would exceed `max_gib`.
+fn guard_memory(plan: &Plan, shape: Shape, max_gib: f64) -> Result<(), Failure> {
+    Estimate::of_plan(plan, shape, Face::Native).check(max_gib * GIB).map_err(|too_large| {
+        Failure(format!(
+            "{}; lower --{}, or raise --max-memory if you mean it",
+            too_large.message(&format!("--max-memory {max_gib}")),
+            too_large.part.lowered_by.name()
+        ))
+    })
+}
+
+/// Write a file through a buffer, naming it in any error.
 /// One run, and the seconds its sampling phase took (wall clock).
 fn execute(tape: &Tape, config: RunConfig, bar: &Bar) -> Result<(Collected, f64), Failure> {
     let mut sampling_started: Option<Instant> = None;
@@ -99,80 +97,12 @@ fn execute(tape: &Tape, config: RunConfig, bar: &Bar) -> Result<(Collected, f64)
     let collected = threads::run(tape, config, |p: &Progress| {
         bar.show(p.phase, p.done, p.total);
         match p.phase {
-            "sampling" if sampling_started.is_none() => sampling_started = Some(Instant::now()),
-            "done" => seconds = sampling_started.map_or(0.0, |t| t.elapsed().as_secs_f64()),
+            Phase::Sampling if sampling_started.is_none() => sampling_started = Some(Instant::now()),
+            Phase::Done => seconds = sampling_started.map_or(0.0, |t| t.elapsed().as_secs_f64()),
             _ => {}
         }
     })?;
     Ok((collected, seconds))
-}
-
-/// Turn the run flags into a validated run configuration for a model with `dim` coordinates:
-/// the defaults of [`RunConfig::default_for`], overridden by what was given.
-pub fn build_config(options: &RunOptions, dim: usize) -> Result<RunConfig, Failure> {
-    let kind = match options.sampler.unwrap_or(SamplerKind::Rwm) {
-        SamplerKind::Rwm => "rwm",
-        SamplerKind::Slice => "slice",
-    };
-    let not_for = if kind == "rwm" {
-        [("--width", options.width.is_some()), ("--stepout", options.stepout.is_some())]
-    } else {
-        [("--scale", options.scale.is_some()), ("--blend", options.blend.is_some())]
-    };
-    if let Some((flag, _)) = not_for.iter().find(|(_, given)| *given) {
-        return Err(format!("{flag} does not apply to --sampler {kind}").into());
-    }
-    let given =
-        options.scale.is_some() || options.blend.is_some() || options.width.is_some() || options.stepout.is_some();
-    let tune = match options.tune {
-        Some(TuneMethod::Bo) => "bo",
-        Some(TuneMethod::Rm) => "rm",
-        Some(TuneMethod::Am) => "am",
-        Some(TuneMethod::None) => "none",
-        None if given => "none",
-        None => "bo",
-    };
-    let seed = options.seed.unwrap_or_else(Stream::entropy_seed);
-    let mut config = RunConfig::default_for(kind, tune, dim, seed)?;
-    match &mut config.settings {
-        Settings::RandomWalk { scale, blend } => {
-            *scale = options.scale.unwrap_or(*scale);
-            *blend = options.blend.unwrap_or(*blend);
-        }
-        Settings::Slice { width, stepout } => {
-            *width = options.width.unwrap_or(*width);
-            *stepout = options.stepout.unwrap_or(*stepout);
-        }
-        Settings::Mixture { .. } => {}
-    }
-    let default = BoConfig::default();
-    let (trials, window) = (options.trials.unwrap_or(default.trials), options.window.unwrap_or(default.window));
-    match &mut config.tuning {
-        Tuning::Bo(bo) => {
-            *bo = BoConfig {
-                score: match options.score {
-                    Some(ScoreKind::Acf) => Score::Acf,
-                    Some(ScoreKind::EssPerEval) => Score::EssPerEval,
-                    Some(ScoreKind::JumpPerEval) => Score::JumpPerEval,
-                    None => bo.score,
-                },
-                trials,
-                window,
-                freeze: match options.freeze {
-                    Some(FreezeKind::Mixture) => Freeze::Mixture,
-                    Some(FreezeKind::Best) | None => Freeze::Best,
-                },
-            }
-        }
-        Tuning::Rm { steps } | Tuning::Am { steps } => *steps = trials.saturating_mul(window),
-        Tuning::None => {}
-    }
-    config.chains = options.chains.unwrap_or(config.chains);
-    config.warmup = options.warmup.unwrap_or(config.warmup);
-    config.draws = options.draws.unwrap_or(config.draws);
-    config.pilot = options.pilot.unwrap_or(config.pilot);
-    config.validate()?;
-    Ok(config)
 }
 
 /// A progress bar on standard error, shown only when it is a terminal.
@@ -190,9 +120,9 @@ fn progress_bar(quiet: bool) -> Bar {
 }
 
 impl Bar {
-    fn show(&self, phase: &str, done: usize, total: usize) {
+    fn show(&self, phase: Phase, done: usize, total: usize) {
         if let Some(bar) = &self.0 {
-            bar.set_message(phase.to_string());
+            bar.set_message(phase.name());
             bar.set_length(total as u64);
             bar.set_position(done as u64);
         }

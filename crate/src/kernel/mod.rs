@@ -11,12 +11,22 @@ mod random_walk;
 mod slice;
 
 pub use adaptive::{Adapter, Scheme};
-pub use random_walk::RandomWalk;
+pub use random_walk::{MAX_DENSE_DIM, RandomWalk};
 pub use slice::Slice;
 
 use crate::rng::Stream;
 use crate::tape::{Scratch, Tape};
 use serde::{Deserialize, Serialize};
+
+crate::named! {
+    /// The kinds of kernel a user can ask for (a mixture is made only by freezing a tuner).
+    pub enum Kind: "sampler" {
+        /// Random-walk Metropolis.
+        RandomWalk = "rwm",
+        /// Coordinate-wise slice sampling.
+        Slice = "slice",
+    }
+}
 
 /// A kernel's settings, as a user or the tuner chooses them.
 /// Written as `{"kind": "rwm", "settings": {"scale": …, "blend": …}}` in reports and links.
@@ -42,10 +52,19 @@ impl Settings {
     /// pilot standard deviations with up to 20 step-outs (Neal 2003 advises a width somewhat
     /// larger than the typical slice; on a normal target the cost per draw is lowest near 4 sd
     /// and within 2% of that from 3 to 6 sd).
-    pub fn default_for(kind: &str, dim: usize) -> Settings {
+    pub fn default_for(kind: Kind, dim: usize) -> Settings {
         match kind {
-            "slice" => Settings::Slice { width: 3.0, stepout: 20 },
-            _ => Settings::RandomWalk { scale: 2.38 / (dim.max(1) as f64).sqrt(), blend: 1.0 },
+            Kind::Slice => Settings::Slice { width: 3.0, stepout: 20 },
+            Kind::RandomWalk => Settings::RandomWalk { scale: 2.38 / (dim.max(1) as f64).sqrt(), blend: 1.0 },
+        }
+    }
+
+    /// The kind of kernel, or `None` for a mixture.
+    pub fn kind(&self) -> Option<Kind> {
+        match self {
+            Settings::RandomWalk { .. } => Some(Kind::RandomWalk),
+            Settings::Slice { .. } => Some(Kind::Slice),
+            Settings::Mixture { .. } => None,
         }
     }
 
@@ -62,34 +81,36 @@ impl Settings {
         }
     }
 
-    /// Why these settings cannot make a valid kernel, if they cannot.
-    pub fn validate(&self) -> Result<(), String> {
+    /// Why these settings cannot make a valid kernel, if they cannot: the setting at fault
+    /// (`"scale"`, `"blend"`, `"width"`, `"stepout"`, or `"weight"` in a mixture) and why.
+    pub fn validate(&self) -> Result<(), (&'static str, String)> {
         match self {
             Settings::RandomWalk { scale, blend } => {
                 if !(scale.is_finite() && *scale > 0.0) {
-                    return Err(format!("the random-walk scale must be a positive number, not {scale}"));
+                    return Err(("scale", format!("the random-walk scale must be a positive number, not {scale}")));
                 }
                 if !(0.0..=1.0).contains(blend) {
-                    return Err(format!("the blend must be between 0 and 1, not {blend}"));
+                    return Err(("blend", format!("the blend must be between 0 and 1, not {blend}")));
                 }
             }
             Settings::Slice { width, stepout } => {
                 if !(width.is_finite() && *width > 0.0) {
-                    return Err(format!("the slice width must be a positive number, not {width}"));
+                    return Err(("width", format!("the slice width must be a positive number, not {width}")));
                 }
                 if !(1..=MAX_STEPOUT).contains(stepout) {
-                    return Err(format!(
-                        "the step-out limit must be a whole number from 1 to {MAX_STEPOUT}, not {stepout}"
+                    return Err((
+                        "stepout",
+                        format!("the step-out limit must be a whole number from 1 to {MAX_STEPOUT}, not {stepout}"),
                     ));
                 }
             }
             Settings::Mixture { components } => {
                 if components.is_empty() {
-                    return Err("a mixture needs at least one component".into());
+                    return Err(("weight", "a mixture needs at least one component".into()));
                 }
                 for (settings, weight) in components {
                     if !(weight.is_finite() && *weight > 0.0) {
-                        return Err(format!("mixture weights must be positive, not {weight}"));
+                        return Err(("weight", format!("mixture weights must be positive, not {weight}")));
                     }
                     settings.validate()?;
                 }

@@ -5,7 +5,7 @@
 //! A link is untrusted input: its length and unpacked size are capped before anything is
 //! allocated for it, and everything in it is validated as if typed by the user.
 
-use crate::chain::conductor::RunConfig;
+use crate::plan::RunConfig;
 use base64::Engine as _;
 use base64::engine::general_purpose::URL_SAFE_NO_PAD;
 use serde::{Deserialize, Serialize};
@@ -82,7 +82,10 @@ pub fn decode(link: &str) -> Result<Shared, LinkError> {
     })?;
     let shared: Shared = serde_json::from_slice(&json)
         .map_err(|e| LinkError(format!("the link is damaged or from another version of mixwell: {e}")))?;
-    shared.run.validate().map_err(|e| LinkError(format!("the link asks for a run that cannot be made: {e}")))?;
+    shared
+        .run
+        .validate()
+        .map_err(|e| LinkError(format!("the link asks for a run that cannot be made: {}", e.message)))?;
     Ok(shared)
 }
 

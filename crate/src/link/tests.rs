@@ -1,8 +1,10 @@
 //! Share links: round trips, and every kind of damage refused with a clear message.
 
 use super::*;
-use crate::chain::conductor::Tuning;
 use crate::kernel::Settings;
+use crate::plan::Tuning;
+use crate::tune::policy::{BoConfig, Freeze};
+use crate::tune::score::Score;
 
 fn shared() -> Shared {
     Shared {
@@ -83,4 +85,54 @@ fn links_too_long_to_share_are_not_made() {
         .collect();
     big.model = format!("y = [{}]\n{}", numbers.join(", "), big.model);
     assert!(encode(&big, "http://x/").expect_err("too long").0.contains("more than"));
+}
+
+/// Links made before the run configuration moved to `plan` (tests/golden/earlier_links.json)
+/// carry the runs that version built from their flags.
+#[test]
+fn links_made_by_the_earlier_version_still_carry_the_same_runs() {
+    // The default run for the bakery's two coordinates, as that version built it.
+    let standard = || RunConfig {
+        chains: 4,
+        warmup: 1000,
+        draws: 1000,
+        seed: 0,
+        pilot: 200,
+        settings: Settings::RandomWalk { scale: 1.682_914_139_223_982_8, blend: 1.0 },
+        tuning: Tuning::Bo(BoConfig { score: Score::EssPerEval, trials: 100, window: 100, freeze: Freeze::Best }),
+    };
+    let expected = [
+        RunConfig {
+            chains: 3,
+            warmup: 150,
+            draws: 300,
+            seed: 424_242,
+            pilot: 120,
+            settings: Settings::Slice { width: 3.0, stepout: 20 },
+            tuning: Tuning::Bo(BoConfig { score: Score::Acf, trials: 9, window: 40, freeze: Freeze::Mixture }),
+        },
+        RunConfig { seed: 7, tuning: Tuning::Rm { steps: 320 }, ..standard() },
+        RunConfig { chains: 2, seed: 9_007_199_254_740_991, tuning: Tuning::Am { steps: 10_000 }, ..standard() },
+        RunConfig {
+            seed: 31_337,
+            settings: Settings::Slice { width: 2.5, stepout: 12 },
+            tuning: Tuning::None,
+            ..standard()
+        },
+        RunConfig { seed: 1, settings: Settings::RandomWalk { scale: 0.5, blend: 0.25 }, ..standard() },
+        RunConfig { seed: 5, ..standard() },
+    ];
+    let model =
+        std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/../examples/bakery.mw")).expect("the example");
+    let fixture: serde_json::Value =
+        serde_json::from_str(include_str!("../../../tests/golden/earlier_links.json")).expect("JSON");
+    let links = fixture["links"].as_array().expect("a list");
+    assert_eq!(links.len(), expected.len());
+    for (entry, run) in links.iter().zip(expected) {
+        let (flags, link) = (entry["flags"].as_str().unwrap_or_default(), entry["link"].as_str().unwrap_or_default());
+        let shared = decode(link).unwrap_or_else(|e| panic!("{flags}: {e}"));
+        assert_eq!(shared.run, run, "{flags}");
+        assert_eq!(shared.model, model, "{flags}");
+        assert_eq!(decode(&encode(&shared, "http://x/").expect("encodes")), Ok(shared), "{flags}: and round trips");
+    }
 }

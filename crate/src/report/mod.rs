@@ -4,13 +4,16 @@
 //!
 //! The field names of the JSON report are a contract that other tools read; keep them stable.
 
+mod draws;
 mod text;
 
-pub use text::table;
+pub use draws::{ChainSource, DrawsReport, Layout};
+pub use text::{draws_table, fixed, significant, table};
 
 use crate::chain::conductor::{Collected, TuningRecord};
 use crate::diag::{self, Summary};
 use crate::kernel::Settings;
+use crate::plan::Method;
 use serde::Serialize;
 
 /// Said in every report: what diagnostics can and cannot do.
@@ -54,6 +57,16 @@ pub struct Quantity {
     pub autocorrelation: Vec<f64>,
 }
 
+impl Quantity {
+    /// The summary, diagnostics and autocorrelation (lags 0 to `lags`) of one quantity from its
+    /// draws, one slice per chain, with the warnings they call for.
+    pub fn of(name: &str, chains: &[&[f64]], lags: usize) -> (Quantity, Vec<String>) {
+        let summary = diag::summarise(chains);
+        let warnings = diag::warnings(name, &summary, chains.len(), &diag::Thresholds::default());
+        (Quantity { name: name.to_string(), autocorrelation: diag::autocorrelation(chains, lags), summary }, warnings)
+    }
+}
+
 #[derive(Clone, Debug, Serialize)]
 pub struct ChainReport {
     /// 1-based, as printed.
@@ -83,9 +96,9 @@ impl Report {
                 let per_chain: Vec<Vec<f64>> =
                     collected.draws.iter().map(|rows| rows.iter().skip(c).step_by(width).copied().collect()).collect();
                 let slices: Vec<&[f64]> = per_chain.iter().map(Vec::as_slice).collect();
-                let summary = diag::summarise(&slices);
-                warnings.extend(diag::warnings(name, &summary, slices.len(), &diag::Thresholds::default()));
-                Quantity { name: name.clone(), autocorrelation: diag::autocorrelation(&slices, lags), summary }
+                let (quantity, said) = Quantity::of(name, &slices, lags);
+                warnings.extend(said);
+                quantity
             })
             .collect();
         let chain_stats: Vec<ChainReport> = collected
@@ -142,7 +155,7 @@ impl Report {
             derived,
             chain_stats,
             evaluations: Evaluations {
-                before_sampling: collected.evaluations_before_sampling,
+                before_sampling: collected.spent.before_sampling(),
                 sampling: collected.stats.iter().map(|s| s.evaluations).sum(),
             },
             warnings,
@@ -159,7 +172,7 @@ impl Report {
 /// One method's line in a comparison: what it froze and what that bought.
 #[derive(Clone, Debug, Serialize, serde::Deserialize)]
 pub struct Comparison {
-    pub method: String,
+    pub method: Method,
     pub settings: Settings,
     /// Mean over chains.
     pub acceptance: f64,
@@ -175,10 +188,10 @@ pub struct Comparison {
 }
 
 impl Comparison {
-    pub fn of(method: &'static str, report: &Report, sampling_seconds: f64) -> Comparison {
+    pub fn of(method: Method, report: &Report, sampling_seconds: f64) -> Comparison {
         let chains = report.chain_stats.len().max(1) as f64;
         Comparison {
-            method: method.to_string(),
+            method,
             settings: report.sampler.clone(),
             acceptance: report.chain_stats.iter().map(|c| c.acceptance).sum::<f64>() / chains,
             bulk_ess_per_eval: report.min_bulk_ess() / report.evaluations.sampling.max(1) as f64,
@@ -192,19 +205,30 @@ impl Comparison {
 /// The draws as CSV (RFC 4180): `chain,iteration,` then one column per parameter element and
 /// derived quantity. Matrix elements such as `m[1,2]` contain a comma and are quoted.
 pub fn csv(collected: &Collected, columns: &[String]) -> String {
-    use std::fmt::Write as _;
+    let mut out = Vec::new();
+    // Writing into memory cannot fail, and every piece written is UTF-8.
+    let _ = write_csv(collected, columns, &mut out);
+    String::from_utf8(out).unwrap_or_default()
+}
+
+/// [`csv`], written to `out` as it is made (so a file of draws needs no copy of it in memory).
+pub fn write_csv(
+    collected: &Collected,
+    columns: &[String],
+    out: &mut (impl std::io::Write + ?Sized),
+) -> std::io::Result<()> {
     let width = columns.len();
     let header: Vec<String> =
         columns.iter().map(|c| if c.contains(',') { format!("\"{c}\"") } else { c.clone() }).collect();
-    let mut out = format!("chain,iteration,{}\n", header.join(","));
+    writeln!(out, "chain,iteration,{}", header.join(","))?;
     for (chain, rows) in collected.draws.iter().enumerate() {
         for (i, row) in rows.chunks_exact(width).enumerate() {
-            let _ = write!(out, "{},{}", chain + 1, i + 1);
+            write!(out, "{},{}", chain + 1, i + 1)?;
             for v in row {
-                let _ = write!(out, ",{v}");
+                write!(out, ",{v}")?;
             }
-            out.push('\n');
+            out.write_all(b"\n")?;
         }
     }
-    out
+    Ok(())
 }

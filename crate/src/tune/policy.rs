@@ -10,9 +10,8 @@
 use super::acquisition::log_expected_improvement;
 use super::gp::{self, FitSettings, Gp, Hyperparameters, Kernel as Covariance};
 use super::polish::{BoxSearch, compass_search, maximise_on_box};
-use super::score::Score;
-use crate::chain::Outcome;
-use crate::kernel::{Geometry, Settings};
+use super::score::{Score, Window};
+use crate::kernel::{Geometry, Kind, Settings};
 use crate::rng::Stream;
 use serde::{Deserialize, Serialize};
 
@@ -29,14 +28,14 @@ const FULL_REFIT_EVERY: usize = 10;
 /// Points of the surrogate grid along each axis, for plots.
 const GRID: usize = 25;
 
-/// How the kernel is frozen after tuning.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum Freeze {
-    /// The setting with the best surrogate mean.
-    Best,
-    /// A fixed mixture of good settings, weighted by exp(surrogate mean / temperature).
-    Mixture,
+crate::named! {
+    /// How the kernel is frozen after tuning.
+    pub enum Freeze: "way of freezing" {
+        /// The setting with the best surrogate mean.
+        Best = "best",
+        /// A fixed mixture of good settings, weighted by exp(surrogate mean / temperature).
+        Mixture = "mixture",
+    }
 }
 
 /// The Bayesian-optimisation budget and choices.
@@ -75,10 +74,11 @@ pub struct Axis {
 }
 
 impl Space {
-    pub fn for_settings(settings: &Settings, dim: usize) -> Space {
-        match settings {
-            Settings::Slice { .. } => Space::Slice,
-            _ => Space::RandomWalk { base_scale: 2.38 / (dim.max(1) as f64).sqrt() },
+    /// The square a kernel of `kind` is tuned over, for a model with `dim` coordinates.
+    pub fn for_kind(kind: Kind, dim: usize) -> Space {
+        match kind {
+            Kind::Slice => Space::Slice,
+            Kind::RandomWalk => Space::RandomWalk { base_scale: 2.38 / (dim.max(1) as f64).sqrt() },
         }
     }
 
@@ -175,13 +175,12 @@ impl Tuner {
         Some(settings)
     }
 
-    /// Record the chains' outcomes of the trial last proposed (rows of unconstrained
-    /// coordinates, scored against the pilot's `geometry`) and refit the surrogate.
-    pub fn observe(&mut self, outcomes: &[Outcome], geometry: &Geometry) {
+    /// Record what the chains did in the trial last proposed (scored against the pilot's
+    /// `geometry`) and refit the surrogate.
+    pub fn observe(&mut self, window: &Window, geometry: &Geometry) {
         let Some(x) = self.pending.take() else { return };
-        let score = self.config.score.of(outcomes, geometry);
-        let evaluations = outcomes.iter().map(|o| o.evaluations).sum();
-        self.trials.push(Trial { settings: self.space.settings(&x), x, score, evaluations });
+        let score = self.config.score.of(window, geometry);
+        self.trials.push(Trial { settings: self.space.settings(&x), x, score, evaluations: window.evaluations });
         if self.trials.len() >= self.design.len() {
             self.refit();
         }

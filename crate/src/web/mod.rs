@@ -5,9 +5,15 @@
 //! because that is how JavaScript strings (and so the editor) count; rows and columns are 1-based,
 //! columns in characters, as the command line prints them.
 
+mod diagnose;
+mod format;
 mod run;
 
-pub use run::{ChainEngine, RunEngine, comparison_configs, default_config, describe_settings, make_link, read_link};
+pub use diagnose::{MAX_PAGE_CSV_BYTES, diagnose_files};
+pub use format::{format_fixed, format_significant};
+pub use run::{
+    ChainEngine, RunEngine, default_settings, describe_settings, make_link, plan_run, read_link, standard_options,
+};
 
 use crate::lang::{Diagnostic, Position};
 use crate::model::{self, ModelInfo};

@@ -3,17 +3,42 @@
 //! [`RunEngine`] in another; the page only carries their messages. Configurations, tasks and
 //! reports are plain objects; recorded draws travel as `Float64Array`s.
 
-use crate::chain::conductor::{Collected, Conductor, MAX_SEED, RunConfig, Tuning};
+use crate::chain::conductor::{Collected, Conductor};
 use crate::chain::{Chain, Outcome, Task};
-use crate::kernel::Settings;
+use crate::kernel::{Kind, Settings};
 use crate::link::{self, Shared};
+use crate::plan::memory::size;
+use crate::plan::{Estimate, Face, MAX_SEED, Method, Opt, Options, Plan, PlanError, RunConfig, Shape};
 use crate::report::{self, Comparison, Report};
 use crate::tape::Tape;
 use serde::{Deserialize, Serialize};
 use wasm_bindgen::prelude::*;
 
-/// Draws a page may hold: above this many bytes a run is refused before it starts.
-pub const MAX_PAGE_DRAW_BYTES: f64 = 1.0 * (1u64 << 30) as f64;
+/// Memory a page may use for one run (or one comparison of runs), at its peak: beyond it a run
+/// is refused before it starts. A browser tab holds a few GiB, each engine worker at most 4 GiB,
+/// and JavaScript's strings (the CSV of the draws) at most about 512 million characters.
+pub const MAX_PAGE_BYTES: f64 = (1u64 << 30) as f64;
+
+/// Why `plan` cannot run in a page, if it cannot, naming the option that makes it smaller.
+fn page_memory(plan: &Plan, shape: Shape) -> Result<(), PlanError> {
+    Estimate::of_plan(plan, shape, Face::Page).check(MAX_PAGE_BYTES).map_err(|too_large| {
+        let option = too_large.part.lowered_by;
+        let fewer = match option {
+            Opt::Chains => "fewer chains",
+            Opt::Draws => "fewer draws",
+            Opt::Window => "fewer steps per trial",
+            Opt::Trials => "fewer trials",
+            _ => "a smaller run",
+        };
+        PlanError::of(
+            option,
+            format!(
+                "{}; use {fewer}, or the command line",
+                too_large.message(&format!("the {} a page can hold", size(MAX_PAGE_BYTES)))
+            ),
+        )
+    })
+}
 
 fn to_js<T: Serialize>(value: &T) -> Result<JsValue, JsError> {
     Ok(value.serialize(&serde_wasm_bindgen::Serializer::json_compatible())?)
@@ -84,7 +109,7 @@ fn seed_from(seed: f64) -> Result<u64, JsError> {
 pub struct RunEngine {
     tape: Tape,
     conductor: Option<Conductor>,
-    method: &'static str,
+    method: Method,
     finished: Option<(Collected, Report)>,
     lags: usize,
 }
@@ -92,23 +117,17 @@ pub struct RunEngine {
 #[wasm_bindgen]
 impl RunEngine {
     /// A run of `source` as `config` (a run configuration object) says, reporting
-    /// autocorrelation to lag `lags`; refused when the configuration is invalid or its draws
-    /// would not fit in a page's memory.
+    /// autocorrelation to lag `lags`; refused, before anything is allocated for it, when the
+    /// configuration is invalid or the run would not fit in a page's memory.
     #[wasm_bindgen(constructor)]
     pub fn new(source: &str, config: JsValue, lags: usize) -> Result<RunEngine, JsError> {
         let tape = compile(source)?;
         let config: RunConfig = serde_wasm_bindgen::from_value(config)?;
-        config.validate().map_err(|e| JsError::new(&e))?;
-        let bytes = config.draw_bytes(tape.columns().len());
-        if bytes > MAX_PAGE_DRAW_BYTES {
-            return Err(JsError::new(&format!(
-                "this run would hold about {:.1} GiB of draws; a page can hold at most {:.0} GiB — use fewer draws or chains, or the command line",
-                bytes / (1u64 << 30) as f64,
-                MAX_PAGE_DRAW_BYTES / (1u64 << 30) as f64
-            )));
-        }
-        let method = config.tuning.name();
-        let conductor = Conductor::new(config, tape.dim());
+        let plan = Plan::of_config(config, tape.dim(), false).map_err(|e| JsError::new(&e.message))?;
+        page_memory(&plan, Shape::of(&tape)).map_err(|e| JsError::new(&e.message))?;
+        let config = plan.runs.into_iter().next().ok_or_else(|| JsError::new("no run to make"))?;
+        let method = config.tuning.method();
+        let conductor = Conductor::new(config, Shape::of(&tape));
         Ok(RunEngine { tape, conductor: Some(conductor), method, finished: None, lags })
     }
 
@@ -198,13 +217,60 @@ struct Attached<'a> {
     json: String,
 }
 
-/// The run configuration the command line would use for `source` with no options but `kind`
-/// (`"rwm"` or `"slice"`), `tune` (`"bo"`, `"rm"`, `"am"` or `"none"`) and `seed`.
+/// What the page asks for: its form as run options, or a configuration from a link that the
+/// form cannot hold; and whether to compare the tuning methods.
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct Request {
+    #[serde(default)]
+    options: Option<Options>,
+    #[serde(default)]
+    config: Option<RunConfig>,
+    #[serde(default)]
+    compare: bool,
+}
+
+/// The answer of [`plan_run`].
+#[derive(Serialize)]
+#[serde(untagged)]
+enum Planned {
+    Ok { ok: bool, config: RunConfig, runs: Vec<RunConfig>, chosen: usize },
+    Err { ok: bool, option: Option<Opt>, message: String },
+}
+
+/// The runs the page's request `{ options, compare }` (or `{ config, compare }`) makes for
+/// `source` — built by the same function as the command line's (see `plan`): `{ ok: true,
+/// config, runs, chosen }`, where `runs` are all the runs of a comparison (or just `config`)
+/// and `runs[chosen]` is `config`; or `{ ok: false, option, message }`, where `option` names the
+/// option at fault (`"chains"`, …, or null) and the message does not. Runs that would not fit in
+/// a page's memory are refused here too. Throws when the model does not read.
 #[wasm_bindgen]
-pub fn default_config(source: &str, kind: &str, tune: &str, seed: f64) -> Result<JsValue, JsError> {
+pub fn plan_run(source: &str, request: JsValue) -> Result<JsValue, JsError> {
     let tape = compile(source)?;
-    let config = RunConfig::default_for(kind, tune, tape.dim(), seed_from(seed)?).map_err(|e| JsError::new(&e))?;
-    to_js(&config)
+    let request: Request = serde_wasm_bindgen::from_value(request)?;
+    let plan = match (request.options, request.config) {
+        (Some(options), None) => Plan::new(&options, tape.dim(), request.compare),
+        (None, Some(config)) => Plan::of_config(config, tape.dim(), request.compare),
+        _ => return Err(JsError::new("a run request needs either `options` or `config`")),
+    };
+    let planned = match plan.and_then(|plan| page_memory(&plan, Shape::of(&tape)).map(|()| plan)) {
+        Ok(plan) => Planned::Ok { ok: true, config: plan.config().clone(), chosen: plan.chosen, runs: plan.runs },
+        Err(PlanError { option, message }) => Planned::Err { ok: false, option, message },
+    };
+    to_js(&planned)
+}
+
+/// The run options a form shows before any change (see [`Options::standard`]).
+#[wasm_bindgen]
+pub fn standard_options() -> Result<JsValue, JsError> {
+    to_js(&Options::standard())
+}
+
+/// The default settings of kernel `kind` (`"rwm"` or `"slice"`) for `source`.
+#[wasm_bindgen]
+pub fn default_settings(source: &str, kind: &str) -> Result<JsValue, JsError> {
+    let kind: Kind = kind.parse().map_err(|e: String| JsError::new(&e))?;
+    to_js(&Settings::default_for(kind, compile(source)?.dim()))
 }
 
 /// A kernel's settings in words, as the command line prints them ("random-walk Metropolis,
@@ -215,36 +281,27 @@ pub fn describe_settings(settings: JsValue) -> Result<String, JsError> {
     Ok(settings.describe())
 }
 
-/// Every tuning method that applies to `config`'s kernel, with its budget: the runs a
-/// comparison makes, as configurations.
-#[wasm_bindgen]
-pub fn comparison_configs(config: JsValue) -> Result<JsValue, JsError> {
-    let config: RunConfig = serde_wasm_bindgen::from_value(config)?;
-    let bo = match &config.tuning {
-        Tuning::Bo(bo) => bo.clone(),
-        _ => crate::tune::policy::BoConfig {
-            score: crate::tune::score::Score::default_for(&config.settings),
-            ..Default::default()
-        },
-    };
-    let runs: Vec<RunConfig> = Tuning::alternatives(&config.settings, &bo)
-        .into_iter()
-        .map(|tuning| RunConfig { tuning, ..config.clone() })
-        .collect();
-    to_js(&runs)
-}
-
 /// The link to `page` that carries `source` and `config`.
 #[wasm_bindgen]
 pub fn make_link(source: &str, config: JsValue, page: &str) -> Result<String, JsError> {
     let run: RunConfig = serde_wasm_bindgen::from_value(config)?;
-    run.validate().map_err(|e| JsError::new(&e))?;
+    run.validate().map_err(|e| JsError::new(&e.message))?;
     link::encode(&Shared { model: source.to_string(), run }, page).map_err(|e| JsError::new(&e.0))
 }
 
-/// What a link carries: `{ model, run }`, or an error saying what is wrong with it.
+/// What a link carries: `{ model, run, options }`, where `options` are the run options that
+/// give `run` (for the form; null for a run no options can ask for, such as a mixture of
+/// kernels); or an error saying what is wrong with the link.
 #[wasm_bindgen]
 pub fn read_link(link: &str) -> Result<JsValue, JsError> {
-    let shared = link::decode(link).map_err(|e| JsError::new(&e.0))?;
-    to_js(&shared)
+    let Shared { model, run } = link::decode(link).map_err(|e| JsError::new(&e.0))?;
+    let dim = compile(&model).ok().map(|tape| tape.dim());
+    let options = Options::from_config(&run, dim);
+    #[derive(Serialize)]
+    struct Read {
+        model: String,
+        run: RunConfig,
+        options: Option<Options>,
+    }
+    to_js(&Read { model, run, options })
 }

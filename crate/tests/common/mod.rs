@@ -1,10 +1,11 @@
 //! Helpers shared by the statistical tests: compile a model, run chains, pull out one column.
 #![allow(dead_code)]
 
-use mixwell::chain::conductor::{Collected, RunConfig, Tuning};
+use mixwell::chain::conductor::Collected;
 use mixwell::chain::threads;
-use mixwell::kernel::Settings;
+use mixwell::kernel::{Kind, Settings};
 use mixwell::model::check;
+use mixwell::plan::{RunConfig, Tuning};
 use mixwell::tape::Tape;
 
 pub fn compile(source: &str) -> Tape {
@@ -29,8 +30,8 @@ pub fn slices(columns: &[Vec<f64>]) -> Vec<&[f64]> {
 
 /// The kernels every statistical test runs: both defaults and a fixed mixture of the two.
 pub fn kernels(dim: usize) -> Vec<(&'static str, Settings)> {
-    let rwm = Settings::default_for("rwm", dim);
-    let slice = Settings::default_for("slice", dim);
+    let rwm = Settings::default_for(Kind::RandomWalk, dim);
+    let slice = Settings::default_for(Kind::Slice, dim);
     vec![
         ("random walk", rwm.clone()),
         ("slice", slice.clone()),
