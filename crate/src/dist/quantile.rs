@@ -1,20 +1,13 @@
-//! The standard normal distribution function and quantiles used by diagnostics and the tuner:
-//! Φ, φ, Φ⁻¹, the regularised incomplete beta function and the Beta quantile.
+//! Quantiles used by diagnostics and the tuner: Φ⁻¹ and the Beta quantile.
 //!
 //! Only `libm` supplies transcendental functions, so every value here is bit-identical natively and
-//! in wasm. These are not log-densities (those live in the parent module); they are the quantile
-//! machinery that rank normalisation and the Monte Carlo standard error of quantiles need.
+//! in wasm. The distribution functions these invert (Φ, the incomplete beta function) live in
+//! [`super::special`]; they are re-exported here under the names the diagnostics have always used.
 //! Equation and section numbers of the cited books are recalled from memory.
 
-/// Φ(z), the standard normal distribution function.
-pub fn normal_cdf(z: f64) -> f64 {
-    0.5 * libm::erfc(-z * core::f64::consts::FRAC_1_SQRT_2)
-}
-
-/// φ(z), the standard normal density.
-pub fn normal_pdf(z: f64) -> f64 {
-    libm::exp(-0.5 * z * z) / (2.0 * core::f64::consts::PI).sqrt()
-}
+use super::special::IncompleteBeta;
+pub use super::special::incomplete_beta as regularised_incomplete_beta;
+pub use super::special::{normal_cdf, normal_pdf};
 
 // AS 241 (PPND16) coefficients, exactly as published, highest power first. Central region
 // |p − ½| ≤ 0.425: a rational function of r = 0.425² − q², times q.
@@ -127,117 +120,6 @@ pub fn normal_quantile(p: f64) -> f64 {
     if q < 0.0 { -x } else { x }
 }
 
-/// log B(a, b) = log Γ(a) + log Γ(b) − log Γ(a + b).
-fn ln_beta(a: f64, b: f64) -> f64 {
-    libm::lgamma(a) + libm::lgamma(b) - libm::lgamma(a + b)
-}
-
-/// Both parameters at least this large use the Stirling form of [`ln_beta_front`].
-const STIRLING_FROM: f64 = 10.0;
-
-/// log of xᵃ(1 − x)ᵇ / B(a, b), for 0 < x < 1.
-///
-/// For large a and b the three log-gamma values nearly cancel, and the naive sum loses about
-/// log10((a + b)·log(a + b)) digits. There the Stirling form is used instead (the device of
-/// DiDonato & Morris 1992, ACM TOMS 18(3), algorithm 708): with x₀ = a/(a + b) and d = x − x₀,
-/// a·log1p(d/x₀) + b·log1p(−d/(1 − x₀)) + ½·log(ab/(a + b)) − ½·log 2π − Δ(a) − Δ(b) + Δ(a + b),
-/// where Δ is the remainder of Stirling's series. An error in x₀ cancels to first order, because
-/// x₀ is where the first two terms peak.
-fn ln_beta_front(a: f64, b: f64, x: f64) -> f64 {
-    if a < STIRLING_FROM || b < STIRLING_FROM {
-        return a * libm::log(x) + b * libm::log1p(-x) - ln_beta(a, b);
-    }
-    let total = a + b;
-    let (x0, y0) = (a / total, b / total);
-    let d = x - x0;
-    a * libm::log1p(d / x0) + b * libm::log1p(-d / y0) + 0.5 * libm::log(a * b / total)
-        - crate::dist::special::HALF_LN_2PI
-        - stirling_remainder(a)
-        - stirling_remainder(b)
-        + stirling_remainder(total)
-}
-
-/// Δ(x) = log Γ(x) − [(x − ½)·log x − x + ½·log 2π], for x ≥ 10, by the asymptotic series
-/// Σ B₂ₖ / (2k(2k − 1) x^{2k−1}) (Abramowitz & Stegun 1964, eq. 6.1.40); eight terms leave an
-/// error below 1e-17 at x = 10.
-fn stirling_remainder(x: f64) -> f64 {
-    const COEFFS: [f64; 8] = [
-        1.0 / 12.0,
-        -1.0 / 360.0,
-        1.0 / 1260.0,
-        -1.0 / 1680.0,
-        1.0 / 1188.0,
-        -691.0 / 360360.0,
-        1.0 / 156.0,
-        -3617.0 / 122400.0,
-    ];
-    let inv = 1.0 / x;
-    let inv2 = inv * inv;
-    let mut sum = 0.0;
-    for c in COEFFS.iter().rev() {
-        sum = sum * inv2 + c;
-    }
-    sum * inv
-}
-
-/// The continued fraction for I_x(a, b) (Abramowitz & Stegun 1964, eq. 26.5.8), evaluated by the
-/// modified Lentz method (Lentz 1976; Thompson & Barnett 1986). Converges fast for
-/// x < (a + 1)/(a + b + 2), in about O(√max(a, b)) terms.
-fn beta_continued_fraction(a: f64, b: f64, x: f64) -> f64 {
-    const MAX_TERMS: usize = 100_000;
-    let (qab, qap, qam) = (a + b, a + 1.0, a - 1.0);
-    let mut c = 1.0;
-    let mut d = 1.0 - qab * x / qap;
-    if d.abs() < TINY {
-        d = TINY;
-    }
-    d = 1.0 / d;
-    let mut h = d;
-    for m in 1..=MAX_TERMS {
-        let m = m as f64;
-        let m2 = 2.0 * m;
-        // Even step.
-        h *= lentz_step(m * (b - m) * x / ((qam + m2) * (a + m2)), &mut c, &mut d);
-        // Odd step.
-        let delta = lentz_step(-(a + m) * (qab + m) * x / ((a + m2) * (qap + m2)), &mut c, &mut d);
-        h *= delta;
-        if (delta - 1.0).abs() <= f64::EPSILON {
-            break;
-        }
-    }
-    h
-}
-
-/// I_x(a, b), the regularised incomplete beta function: the Beta(a, b) distribution function at x.
-///
-/// Continued fraction of Abramowitz & Stegun (1964) eq. 26.5.8 with the symmetry
-/// I_x(a, b) = 1 − I_{1−x}(b, a) to stay where it converges fast (as in Press et al. 2007,
-/// *Numerical Recipes*, §6.4). Against scipy's `betainc` the relative error is below 1e-13 for
-/// a, b up to 3·10⁴ (crate/tests/diagnostics.rs). When one parameter is below 10 and the other
-/// is large, the log-gamma cancellation costs about ε·b·log b.
-/// Invalid arguments (a ≤ 0, b ≤ 0, NaN) give NaN; x is clamped to [0, 1].
-pub fn regularised_incomplete_beta(a: f64, b: f64, x: f64) -> f64 {
-    if a.is_nan() || b.is_nan() || x.is_nan() || a <= 0.0 || b <= 0.0 {
-        return f64::NAN;
-    }
-    if x <= 0.0 {
-        return 0.0;
-    }
-    if x >= 1.0 {
-        return 1.0;
-    }
-    if x < (a + 1.0) / (a + b + 2.0) {
-        libm::exp(ln_beta_front(a, b, x)) * beta_continued_fraction(a, b, x) / a
-    } else {
-        1.0 - libm::exp(ln_beta_front(b, a, 1.0 - x)) * beta_continued_fraction(b, a, 1.0 - x) / b
-    }
-}
-
-/// The Beta(a, b) density at x, 0 < x < 1.
-fn beta_density(a: f64, b: f64, x: f64) -> f64 {
-    libm::exp(ln_beta_front(a, b, x)) / (x * (1.0 - x))
-}
-
 /// The q-quantile of Beta(a, b): the x with I_x(a, b) = q.
 ///
 /// Newton's method on I_x(a, b) − q, kept inside a shrinking bracket by bisection whenever a step
@@ -254,10 +136,13 @@ pub fn beta_quantile(a: f64, b: f64, q: f64) -> f64 {
     if q >= 1.0 {
         return 1.0;
     }
+    let Some(beta) = IncompleteBeta::new(a, b) else {
+        return f64::NAN;
+    };
     let mut x = beta_quantile_start(a, b, q);
     let (mut lo, mut hi) = (0.0_f64, 1.0_f64);
     for _ in 0..300 {
-        let err = regularised_incomplete_beta(a, b, x) - q;
+        let err = beta.tail(x, 1.0 - x).lower_value() - q;
         if err == 0.0 {
             return x;
         }
@@ -266,7 +151,7 @@ pub fn beta_quantile(a: f64, b: f64, q: f64) -> f64 {
         } else {
             hi = x;
         }
-        let density = beta_density(a, b, x);
+        let density = libm::exp(beta.ln_front(x, 1.0 - x)) / (x * (1.0 - x));
         let newton = x - err / density;
         let next = if density > 0.0 && newton > lo && newton < hi { newton } else { 0.5 * (lo + hi) };
         if (next - x).abs() <= 4.0 * f64::EPSILON * x.max(f64::MIN_POSITIVE) || hi - lo <= f64::EPSILON * hi {
@@ -301,24 +186,6 @@ fn beta_quantile_start(a: f64, b: f64, q: f64) -> f64 {
         if q < t / w { libm::pow(a * w * q, 1.0 / a) } else { 1.0 - libm::pow(b * w * (1.0 - q), 1.0 / b) }
     };
     if x > 0.0 && x < 1.0 { x } else { 0.5 }
-}
-
-/// Smallest magnitude the Lentz ratios may take, so no division by zero occurs.
-const TINY: f64 = 1e-300;
-
-/// One step of the modified Lentz algorithm for a continued fraction with partial numerator
-/// `aa`: updates the running ratios `c` and `d` (kept away from zero) and returns the factor c·d.
-fn lentz_step(aa: f64, c: &mut f64, d: &mut f64) -> f64 {
-    *d = 1.0 + aa * *d;
-    if d.abs() < TINY {
-        *d = TINY;
-    }
-    *c = 1.0 + aa / *c;
-    if c.abs() < TINY {
-        *c = TINY;
-    }
-    *d = 1.0 / *d;
-    *d * *c
 }
 
 #[cfg(test)]
@@ -367,35 +234,6 @@ mod tests {
         assert_eq!(normal_quantile(1.0), f64::INFINITY);
         assert!(normal_quantile(f64::NAN).is_nan());
         assert!(normal_quantile(1e-300).is_finite());
-    }
-
-    /// Stirling's series with its remainder reproduces log Γ (REFERENCES.md §2: lgamma(10) =
-    /// log 9! = 12.80182748008147; the others against libm's lgamma).
-    #[test]
-    fn stirling_remainder_completes_log_gamma() {
-        let stirling =
-            |x: f64| (x - 0.5) * libm::log(x) - x + crate::dist::special::HALF_LN_2PI + stirling_remainder(x);
-        assert!(rel(stirling(10.0), 12.80182748008147) < 1e-15);
-        for &x in &[13.5, 41.0, 761.0, 1e5] {
-            assert!(rel(stirling(x), libm::lgamma(x)) < 1e-14, "x = {x}");
-        }
-    }
-
-    /// Exact identities: I_x(1, 1) = x, I_x(a, 1) = xᵃ, I_x(1, b) = 1 − (1 − x)ᵇ, and
-    /// I_{1/2}(a, a) = 1/2 by symmetry (Abramowitz & Stegun 1964, 26.5.14–26.5.16).
-    #[test]
-    fn incomplete_beta_identities() {
-        for &x in &[0.01, 0.2, 0.5, 0.77, 0.999] {
-            assert!(rel(regularised_incomplete_beta(1.0, 1.0, x), x) < 1e-14);
-            assert!(rel(regularised_incomplete_beta(3.5, 1.0, x), libm::pow(x, 3.5)) < 1e-13);
-            assert!(rel(regularised_incomplete_beta(1.0, 2.5, x), 1.0 - libm::pow(1.0 - x, 2.5)) < 1e-13);
-        }
-        for &a in &[0.3, 1.0, 7.5, 120.0, 4000.0] {
-            assert!(rel(regularised_incomplete_beta(a, a, 0.5), 0.5) < 1e-12, "a = {a}");
-        }
-        assert!(regularised_incomplete_beta(-1.0, 1.0, 0.5).is_nan());
-        assert_eq!(regularised_incomplete_beta(2.0, 3.0, -0.1), 0.0);
-        assert_eq!(regularised_incomplete_beta(2.0, 3.0, 1.5), 1.0);
     }
 
     /// The Beta quantile inverts the incomplete beta function; Beta(1, 1) is uniform.

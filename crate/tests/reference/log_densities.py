@@ -17,14 +17,14 @@ Rerun from the repository root (versions pinned in requirements.txt):
 Generated with numpy 2.4.6, scipy 1.17.1, mpmath 1.3.0 (also recorded in the JSON).
 """
 
-import json
-import os
 
 import mpmath as mp
 import numpy as np
 import scipy
 import scipy.special as sp
 import scipy.stats as st
+
+from fixture_io import write_fixture
 
 mp.mp.dps = 50
 
@@ -271,13 +271,24 @@ GENERATED = [
     ("gamma", [1.0, 2.0], 0.7),
     ("gamma", [150.0, 3.0], 48.0),
     ("gamma", [0.05, 1.0], 1e-5),
+    ("gamma", [999.5, 2.0], 480.0),
+    ("gamma", [1000.0, 2.0], 480.0),
+    ("gamma", [1e5, 1.0], 1e5),
+    ("gamma", [1e5, 2.0], 49800.0),
+    ("gamma", [3e7, 0.5], 6.0001e7),
     ("inv_gamma", [0.5, 3.0], 0.05),
     ("inv_gamma", [40.0, 80.0], 2.1),
+    ("inv_gamma", [1e5, 1e5], 1.01),
+    ("inv_gamma", [2500.0, 1000.0], 0.4),
     ("beta", [1.0, 1.0], 0.3),
     ("beta", [0.2, 3.0], 1e-4),
     ("beta", [120.0, 80.0], 0.61),
     ("beta", [0.5, 4000.0], 2e-4),
     ("beta", [2.0, 5.0], 0.999),
+    ("beta", [1e6, 1e6], 0.5005),
+    ("beta", [2000.0, 5000.0], 0.3),
+    ("beta", [1e4, 1e4], 0.49),
+    ("beta", [1000.0, 999.0], 0.52),
     ("lognormal", [3.0, 0.2], 22.0),
     ("lognormal", [0.0, 2.0], 1e-6),
     ("uniform", [1.0, 1.5], 1.0),
@@ -450,18 +461,7 @@ def main():
         "mvnormal": mvn,
         "special": special,
     }
-    path = os.path.join(os.path.dirname(os.path.abspath(__file__)), "log_densities.json")
-    # One case per line keeps the fixture readable and its diffs small.
-    with open(path, "w") as f:
-        f.write("{\n")
-        for key, value in out.items():
-            if isinstance(value, list):
-                lines = ",\n".join("  " + json.dumps(r) for r in value)
-                f.write(f' "{key}": [\n{lines}\n ]')
-            else:
-                f.write(f' "{key}": {json.dumps(value)}')
-            f.write(",\n" if key != "special" else "\n")
-        f.write("}\n")
+    path = write_fixture(__file__, "log_densities.json", out)
     disagree = [(c.get("family") or c.get("function") or "mvnormal", c.get("params") or c.get("args"))
                 for c in cases + mvn + special if not c["scipy_agrees"]]
     print(f"wrote {path}: {len(cases)} cases, {len(mvn)} mvnormal, {len(special)} special")
